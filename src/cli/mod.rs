@@ -1,0 +1,52 @@
+//! Argument structs and command handlers. No physics here: each handler parses, calls the
+//! library and prints.
+
+use clap::{Parser, Subcommand};
+use stillbench::ExitCode;
+
+mod check;
+
+/// Design, simulate and compare solar water stills for one site and the materials a local
+/// workshop can get.
+///
+/// A design file (TOML) describes the site and its climate, the local materials and prices,
+/// and one or more still variants. Start with `stillbench check designs/demo-coast.toml`.
+///
+/// Exit codes: 0 success; 2 bad input (file, field or value — the message names them);
+/// 3 the model could not give a trustworthy result for a valid design; 1 internal error.
+#[derive(Debug, Parser)]
+#[command(name = "stillbench", version, about, long_about)]
+pub struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Debug, Subcommand)]
+enum Command {
+    /// Validate a design file and summarise what it describes.
+    Check(check::CheckArgs),
+}
+
+/// Parse, run, print errors, return the exit code.
+pub fn main() -> std::process::ExitCode {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        Command::Check(args) => check::run(&args),
+    };
+    match result {
+        Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),
+        Err(err) => {
+            let code = exit_code_of(&err);
+            eprintln!("error: {err:#}");
+            std::process::ExitCode::from(code as u8)
+        }
+    }
+}
+
+/// The exit code of an error chain: a library error decides; anything else is internal.
+fn exit_code_of(err: &anyhow::Error) -> ExitCode {
+    err.chain()
+        .find_map(|e| e.downcast_ref::<stillbench::Error>())
+        .map(stillbench::Error::exit_code)
+        .unwrap_or(ExitCode::Internal)
+}

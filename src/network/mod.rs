@@ -1,0 +1,1 @@
+//! The thermal network and its one solver (being written).

@@ -1,0 +1,8 @@
+//! One integration-test binary (one link step) with a module per area.
+
+mod climate;
+mod design;
+mod network;
+mod physics_sun;
+mod physics_transfer;
+mod physics_water;
