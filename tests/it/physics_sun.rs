@@ -9,15 +9,17 @@
 use std::f64::consts::PI;
 
 use stillbench::physics::irradiance::{
-    collares_pereira_rabl_coefficients, collares_pereira_rabl_rt, erbs_diffuse_fraction,
-    erbs_monthly_diffuse_fraction, hay_davies, isotropic, liu_jordan_rd,
+    MIN_COS_ZENITH, collares_pereira_rabl_coefficients, collares_pereira_rabl_rt,
+    direct_normal_w_m2, erbs_diffuse_fraction, erbs_monthly_diffuse_fraction, hay_davies,
+    isotropic, liu_jordan_rd,
 };
 use stillbench::physics::sun::{
     SunError, SunPosition, cos_incidence, daily_extraterrestrial_horizontal_j_m2,
     declination_cooper_rad, declination_spencer_rad, equation_of_time_min,
-    extraterrestrial_normal_w_m2, hour_angle_rad, interval_extraterrestrial_horizontal_j_m2,
-    klein_recommended_day, solar_time_hours, spa_sun_position, spa_sun_position_with_delta_t,
-    sun_position_from_hour_angle, sunset_hour_angle_rad,
+    extraterrestrial_normal_cooper_w_m2, extraterrestrial_normal_w_m2, hour_angle_rad,
+    interval_extraterrestrial_horizontal_j_m2, klein_recommended_day, solar_time_hours,
+    spa_sun_position, spa_sun_position_with_delta_t, sun_position_from_hour_angle,
+    sunset_hour_angle_rad,
 };
 
 fn rad(deg: f64) -> f64 {
@@ -326,6 +328,43 @@ fn horizontal_plane_returns_ghi() {
     assert_close(n.total_w_m2(), 0.0, 0.0, "night");
 }
 
+/// Closure relation GHI = DNI cos θz + DHI (D&B §2.9), solved for DNI: at θz = 60°,
+/// (600 − 100)/0.5 = 1000 W/m² exactly; near the horizon (θz = 89.8°) cos θz is floored at
+/// 0.01745 (pvlib 0.16.1 `haydavies`, see `MIN_COS_ZENITH`): 20/0.01745 W/m²; sun down → 0.
+/// Tolerance 1e-9 W/m² (round-off).
+#[test]
+fn direct_normal_from_closure() {
+    let at = |zen_deg: f64| SunPosition {
+        zenith_rad: rad(zen_deg),
+        azimuth_rad: rad(180.0),
+    };
+    assert_close(
+        direct_normal_w_m2(600.0, 100.0, at(60.0)),
+        1000.0,
+        1e-9,
+        "θz 60°",
+    );
+    assert_close(
+        direct_normal_w_m2(30.0, 10.0, at(89.8)),
+        20.0 / MIN_COS_ZENITH,
+        1e-9,
+        "θz 89.8°",
+    );
+    assert_close(
+        direct_normal_w_m2(30.0, 10.0, at(95.0)),
+        0.0,
+        0.0,
+        "sun down",
+    );
+    // DHI above GHI is limited to GHI (documented): no negative beam.
+    assert_close(
+        direct_normal_w_m2(100.0, 150.0, at(30.0)),
+        0.0,
+        0.0,
+        "DHI > GHI",
+    );
+}
+
 // ---------------------------------------------------------------------------------------
 // Cross-implementation values: pvlib 0.16.1 fixtures (tests/reference/gen_irradiance.py)
 // ---------------------------------------------------------------------------------------
@@ -425,7 +464,8 @@ fn erbs_matches_pvlib() {
 
 /// pvlib 0.16.1 `irradiance.get_extra_radiation(doy, solar_constant=1367, method='spencer')`
 /// for every day 1–366 (fixture `sun_extraterrestrial.csv`). Same Spencer series; tolerance
-/// 1e-9 W/m² (round-off).
+/// 1e-9 W/m² (round-off). The `method='asce'` column is the simple form
+/// G_sc(1 + 0.033 cos(2π n/365)) of D&B eq. 1.4.1a; same tolerance.
 #[test]
 fn extraterrestrial_normal_matches_pvlib() {
     for r in fixture("sun_extraterrestrial.csv") {
@@ -435,6 +475,12 @@ fn extraterrestrial_normal_matches_pvlib() {
             num(&r, "g_on_w_m2"),
             1e-9,
             &format!("G_on day {n}"),
+        );
+        assert_close(
+            extraterrestrial_normal_cooper_w_m2(n),
+            num(&r, "g_on_simple_w_m2"),
+            1e-9,
+            &format!("G_on (simple) day {n}"),
         );
     }
 }

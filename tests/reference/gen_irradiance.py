@@ -143,9 +143,12 @@ def extraterrestrial_and_declination():
     g_on = np.asarray(
         irradiance.get_extra_radiation(doys, solar_constant=SOLAR_CONSTANT_W_M2, method="spencer"), dtype=float
     )
-    write("sun_extraterrestrial.csv", ["day_of_year", "g_on_w_m2"],
-          [[int(n), float(g)] for n, g in zip(doys, g_on)],
-          "pvlib.irradiance.get_extra_radiation(doy, solar_constant=1367, method='spencer')")
+    g_on_simple = np.asarray(
+        irradiance.get_extra_radiation(doys, solar_constant=SOLAR_CONSTANT_W_M2, method="asce"), dtype=float
+    )
+    write("sun_extraterrestrial.csv", ["day_of_year", "g_on_w_m2", "g_on_simple_w_m2"],
+          [[int(n), float(g), float(h)] for n, g, h in zip(doys, g_on, g_on_simple)],
+          "pvlib.irradiance.get_extra_radiation(doy, solar_constant=1367, method='spencer' | 'asce')")
     dec_s = np.asarray(solarposition.declination_spencer71(doys), dtype=float)
     dec_c = np.asarray(solarposition.declination_cooper69(doys), dtype=float)
     eot = np.asarray(solarposition.equation_of_time_spencer71(doys), dtype=float)
