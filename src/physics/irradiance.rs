@@ -91,7 +91,8 @@ fn daylength_shape(sunset_hour_angle_rad: f64) -> f64 {
 /// * `hour_angle_rad` — ω at the middle of the hour [rad]
 /// * `sunset_hour_angle_rad` — ω_s [rad], 0 … π
 ///
-/// Returns r_d [h⁻¹ as a fraction of the day], 0 when |ω| ≥ ω_s (sun down) or in polar night.
+/// Returns r_d [-], the fraction of the day's total falling in that hour; 0 when |ω| ≥ ω_s
+/// (sun down) or in polar night.
 ///
 /// *Notes*: outside sunrise … sunset the formula would go negative; 0 is returned instead.
 pub fn liu_jordan_rd(hour_angle_rad: f64, sunset_hour_angle_rad: f64) -> f64 {
@@ -279,7 +280,9 @@ fn geometry(
 
 /// Irradiance on a tilted plane with the isotropic-sky model.
 ///
-/// Liu & Jordan (1963) isotropic diffuse model; D&B eq. 2.15.1:
+/// B. Y. H. Liu & R. C. Jordan (1963), "A rational procedure for predicting the long-term
+/// average performance of flat-plate solar-energy collectors", *Solar Energy* 7(2), 53–74
+/// (isotropic diffuse sky); D&B eq. 2.15.1:
 /// I_T = I_b R_b + I_d (1 + cos β)/2 + I ρ_g (1 − cos β)/2, with I_b R_b = DNI·max(cos θ, 0)
 /// and DNI from [`direct_normal_w_m2`].
 ///
@@ -324,10 +327,11 @@ pub fn isotropic(
 /// a circumsolar part treated as beam).
 ///
 /// J. E. Hay & J. A. Davies (1980), "Calculation of the solar radiation incident on an
-/// inclined surface", Proc. First Canadian Solar Radiation Data Workshop, 59–72;
-/// D&B eq. 2.16.4 (the HDKR model without Reindl's horizon-brightening factor):
+/// inclined surface", Proc. First Canadian Solar Radiation Data Workshop, p. 59;
+/// D&B eq. 2.16.4 (the HDKR model of D&B §2.16 without Reindl's horizon-brightening term):
 /// I_T = (I_b + I_d A_i) R_b + I_d (1 − A_i)(1 + cos β)/2 + I ρ_g (1 − cos β)/2,
-/// with the anisotropy index A_i = DNI/G_on (D&B eq. 2.16.3, I_b/I_o written per unit normal).
+/// with the anisotropy index A_i = I_b/I_o = DNI/G_on (D&B §2.16; the horizontal ratio equals
+/// the normal one).
 ///
 /// * `ghi_w_m2`, `dhi_w_m2` — global and diffuse horizontal irradiance [W m⁻²]
 /// * `dni_extra_w_m2` — extraterrestrial normal irradiance G_on [W m⁻²]
