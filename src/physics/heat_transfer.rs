@@ -21,7 +21,7 @@ use crate::physics::constants::{
 /// Dunkle (1961), from the Lewis relation for humid air near 1 atm (see [`enclosure_transfer`]).
 pub const DUNKLE_EVAPORATION_FACTOR_K_PA: f64 = 16.273e-3;
 
-/// Dunkle's vapour-density constant in the modified temperature difference [Pa] (268.9 kPa).
+/// Dunkle's vapour-density constant in the modified temperature difference \[Pa\] (268.9 kPa).
 ///
 /// Dunkle (1961): ΔT′ = ΔT + (p_w − p_g)·T_w/(268.9e3 − p_w). It equals
 /// P·M_air/(M_air − M_water) at P = 1 atm (101 325 × 28.96/10.94 ≈ 268 kPa).
@@ -47,9 +47,9 @@ pub struct EnclosureAir {
     pub kinematic_viscosity_m2_s: f64,
     /// Prandtl number Pr [-].
     pub prandtl: f64,
-    /// Total pressure inside the enclosure P [Pa] (site pressure for a vented still).
+    /// Total pressure inside the enclosure P \[Pa\] (site pressure for a vented still).
     pub total_pressure_pa: f64,
-    /// Characteristic length L [m]: the mean brine-to-cover distance of a basin, or the
+    /// Characteristic length L \[m\]: the mean brine-to-cover distance of a basin, or the
     /// plate spacing of a narrow inclined enclosure.
     pub characteristic_length_m: f64,
 }
@@ -79,7 +79,7 @@ pub enum InternalCorrelation {
     /// plates heated from below (wick and stepped stills, multi-effect stages). The plate
     /// spacing is [`EnclosureAir::characteristic_length_m`].
     InclinedEnclosure {
-        /// Tilt of the plates from horizontal β [rad], 0…75°.
+        /// Tilt of the plates from horizontal β \[rad\], 0…75°.
         tilt_rad: f64,
     },
 }
@@ -135,7 +135,7 @@ impl InternalCorrelation {
 
 /// Smallest Kumar–Tiwari exponent accepted (keeps the blend exponent 2/n ≤ 20).
 const KT_N_MIN: f64 = 0.1;
-/// Upper tilt limit of Hollands et al. (1976) [rad] (75°).
+/// Upper tilt limit of Hollands et al. (1976) \[rad\] (75°).
 const HOLLANDS_MAX_TILT_RAD: f64 = 75.0 * std::f64::consts::PI / 180.0;
 
 /// Fluxes between the hot and cold surface of an enclosure, per m² of surface, with their
@@ -185,7 +185,7 @@ fn guarded_denominator(d_pa: f64, p_star_pa: f64) -> (f64, f64) {
     }
 }
 
-/// Dunkle's pressure constant scaled to the enclosure's total pressure [Pa].
+/// Dunkle's pressure constant scaled to the enclosure's total pressure \[Pa\].
 fn dunkle_pressure_constant_at(p_total_pa: f64) -> f64 {
     let p = if p_total_pa.is_finite() && p_total_pa > 0.0 {
         p_total_pa
@@ -216,15 +216,15 @@ fn modified_difference(
     Dual2 { v, d_hot, d_cold }
 }
 
-/// Dunkle's vapour-modified temperature difference ΔT′ [K].
+/// Dunkle's vapour-modified temperature difference ΔT′ \[K\].
 ///
 /// Dunkle (1961): ΔT′ = (T_w − T_g) + (p_w − p_g)·T_w/(268.9e3 − p_w), T_w in kelvin.
 ///
-/// * `t_hot_k`, `t_cold_k` — evaporating and condensing surface temperatures [K]
-/// * `p_hot_pa`, `p_cold_pa` — saturation vapour pressures at those temperatures [Pa]
-/// * `p_total_pa` — total pressure in the enclosure [Pa]
+/// * `t_hot_k`, `t_cold_k` — evaporating and condensing surface temperatures \[K\]
+/// * `p_hot_pa`, `p_cold_pa` — saturation vapour pressures at those temperatures \[Pa\]
+/// * `p_total_pa` — total pressure in the enclosure \[Pa\]
 ///
-/// Returns ΔT′ [K]; it is the temperature difference that gives the same buoyancy in dry
+/// Returns ΔT′ \[K\]; it is the temperature difference that gives the same buoyancy in dry
 /// air as the real temperature and humidity differences together.
 ///
 /// *Notes*: the 268.9 kPa constant is P·M_a/(M_a − M_w) at 1 atm; here it is scaled with
@@ -247,8 +247,8 @@ pub fn vapour_modified_temperature_difference_k(
 /// diffusion still", Int. Developments in Heat Transfer, ASME, Part V, 895–902:
 /// h_cw = 0.884·ΔT′^(1/3) with ΔT′ from [`vapour_modified_temperature_difference_k`] at 1 atm.
 ///
-/// * `t_hot_k`, `t_cold_k` — brine and cover temperatures [K]
-/// * `p_hot_pa`, `p_cold_pa` — saturation pressures at those temperatures [Pa]
+/// * `t_hot_k`, `t_cold_k` — brine and cover temperatures \[K\]
+/// * `p_hot_pa`, `p_cold_pa` — saturation pressures at those temperatures \[Pa\]
 ///
 /// Returns h_cw [W m⁻² K⁻¹], and 0 when ΔT′ ≤ 0 (no convection). Valid for turbulent free
 /// convection, Gr above ≈ 3.2e5, i.e. ordinary basin stills.
@@ -277,7 +277,7 @@ pub fn dunkle_convective_coefficient_w_m2_k(
 /// written here without the temperature difference: q_ew = 16.273e−3·h_cw·(p_w − p_g).
 ///
 /// * `h_convective_w_m2_k` — convective coefficient h_c [W m⁻² K⁻¹]
-/// * `p_hot_pa`, `p_cold_pa` — saturation pressures at the two surfaces [Pa]
+/// * `p_hot_pa`, `p_cold_pa` — saturation pressures at the two surfaces \[Pa\]
 ///
 /// Returns q_e [W m⁻²], positive from the hot to the cold surface.
 ///
@@ -292,7 +292,7 @@ pub fn lewis_evaporative_flux_w_m2(h_convective_w_m2_k: f64, p_hot_pa: f64, p_co
 /// Ra = g·ΔT′·L³·Pr/(ν²·T̄) with T̄ = (T_hot + T_cold)/2 (ideal-gas expansion coefficient
 /// 1/T̄); it equals Gr·Pr of Kumar & Tiwari (1996) and the Ra of Hollands et al. (1976).
 ///
-/// * `t_hot_k`, `t_cold_k` [K]; `p_hot_pa`, `p_cold_pa` saturation pressures [Pa]
+/// * `t_hot_k`, `t_cold_k` \[K\]; `p_hot_pa`, `p_cold_pa` saturation pressures \[Pa\]
 /// * `props` — air properties and characteristic length
 ///
 /// Returns Ra [-], negative when the layer is stably stratified.
@@ -312,7 +312,7 @@ pub fn vapour_modified_rayleigh(
 /// distillation systems", Solar Energy 57(6), 459–464: Gr = g·β·ΔT′·L³/ν², β = 1/T̄
 /// (from memory).
 ///
-/// * `t_hot_k`, `t_cold_k` [K]; `p_hot_pa`, `p_cold_pa` saturation pressures [Pa]
+/// * `t_hot_k`, `t_cold_k` \[K\]; `p_hot_pa`, `p_cold_pa` saturation pressures \[Pa\]
 /// * `props` — air properties; L is the mean brine-to-cover distance
 pub fn kumar_tiwari_grashof(
     t_hot_k: f64,
@@ -403,12 +403,13 @@ fn soft_positive(x: f64, w: f64) -> (f64, f64) {
 ///
 /// Hollands, K.G.T., Unny, T.E., Raithby, G.D. & Konicek, L. (1976), "Free convective heat
 /// transfer across inclined air layers", J. Heat Transfer 98, 189–193; as given in Duffie &
-/// Beckman (2013) eq. 3.8.4:
+/// Beckman (2013) ch. 3, natural convection between parallel plates (eq. 3.8.4, equation
+/// number from memory):
 /// Nu = 1 + 1.44[1 − 1708(sin 1.8β)^1.6/(Ra cos β)][1 − 1708/(Ra cos β)]⁺
 ///        + [(Ra cos β/5830)^(1/3) − 1]⁺.
 ///
 /// * `rayleigh` — Ra on the plate spacing [-]
-/// * `tilt_rad` — tilt from horizontal β [rad], valid 0…75°
+/// * `tilt_rad` — tilt from horizontal β \[rad\], valid 0…75°
 ///
 /// Returns Nu [-] ≥ 1. *Notes*: β is clamped to 0…75°; Ra ≤ 0 (stable layer) gives 1.
 pub fn hollands_nusselt(rayleigh: f64, tilt_rad: f64) -> f64 {
@@ -451,12 +452,12 @@ fn hollands_nusselt_smooth(rayleigh: f64, tilt_rad: f64) -> (f64, f64) {
 ///
 /// Sources: Dunkle (1961) for the vapour-modified ΔT′, the Lewis-relation evaporative flux
 /// q_e = 16.273e−3·h_c·(p_hot − p_cold) and the Dunkle h_c; Kumar & Tiwari (1996),
-/// Solar Energy 57(6), Nu = C(Gr·Pr)^n; Hollands et al. (1976), D&B (2013) eq. 3.8.4.
+/// Solar Energy 57(6), Nu = C(Gr·Pr)^n; Hollands et al. (1976) (see [`hollands_nusselt`]).
 ///
 /// * `corr` — the correlation
-/// * `t_hot_k`, `t_cold_k` — surface temperatures [K]
+/// * `t_hot_k`, `t_cold_k` — surface temperatures \[K\]
 /// * `p_hot_pa`, `p_cold_pa` — saturation vapour pressures at those temperatures (with the
-///   salinity lowering if any) [Pa]
+///   salinity lowering if any) \[Pa\]
 /// * `dp_hot_dt_pa_k`, `dp_cold_dt_pa_k` — their temperature derivatives [Pa K⁻¹]
 /// * `props` — air properties, total pressure and characteristic length
 ///
@@ -567,9 +568,9 @@ pub fn enclosure_transfer(
 /// Linearised radiative exchange coefficient between two grey surfaces [W m⁻² K⁻¹].
 ///
 /// h_r = ε·σ·(T₁² + T₂²)(T₁ + T₂), so that q = h_r (T₁ − T₂) = ε σ (T₁⁴ − T₂⁴) exactly
-/// (Duffie & Beckman 2013, eq. 3.10.1).
+/// (linearised radiation coefficient, Duffie & Beckman 2013 ch. 3, from memory).
 ///
-/// * `t1_k`, `t2_k` — surface temperatures [K]
+/// * `t1_k`, `t2_k` — surface temperatures \[K\]
 /// * `eps` — effective emissivity of the pair [-] (e.g. [`crate::physics::optics::effective_emissivity_parallel`])
 pub fn radiative_coefficient_w_m2_k(t1_k: f64, t2_k: f64, eps: f64) -> f64 {
     eps * STEFAN_BOLTZMANN_W_M2_K4 * (t1_k * t1_k + t2_k * t2_k) * (t1_k + t2_k)
@@ -579,7 +580,7 @@ pub fn radiative_coefficient_w_m2_k(t1_k: f64, t2_k: f64, eps: f64) -> f64 {
 ///
 /// Dunkle (1961): h_rw = ε_eff σ (T_w² + T_g²)(T_w + T_g), ε_eff = (1/ε_w + 1/ε_g − 1)⁻¹.
 ///
-/// * `t_w_k`, `t_g_k` — brine and cover temperatures [K]; `eps_eff` [-]
+/// * `t_w_k`, `t_g_k` — brine and cover temperatures \[K\]; `eps_eff` [-]
 pub fn dunkle_radiative_coefficient_w_m2_k(t_w_k: f64, t_g_k: f64, eps_eff: f64) -> f64 {
     radiative_coefficient_w_m2_k(t_w_k, t_g_k, eps_eff)
 }
@@ -604,10 +605,10 @@ const STEFAN_MAX_PRESSURE_FRACTION: f64 = 0.99;
 /// 2nd ed. 2002, §18.2, eq. 18.2-14, from memory):
 /// ṁ = D·M·P/(R·T̄·δ) · ln[(P − p_c)/(P − p_e)], T̄ = (T_e + T_c)/2.
 ///
-/// * `t_hot_k`, `t_cold_k` — evaporator and condenser temperatures [K]
-/// * `p_hot_pa`, `p_cold_pa` — vapour pressures at the two surfaces [Pa]
+/// * `t_hot_k`, `t_cold_k` — evaporator and condenser temperatures \[K\]
+/// * `p_hot_pa`, `p_cold_pa` — vapour pressures at the two surfaces \[Pa\]
 /// * `dp_hot_dt_pa_k`, `dp_cold_dt_pa_k` — their temperature derivatives [Pa K⁻¹]
-/// * `gap_m` — gap width δ [m]; `p_total_pa` — total pressure P [Pa]
+/// * `gap_m` — gap width δ \[m\]; `p_total_pa` — total pressure P \[Pa\]
 /// * `diffusivity_m2_s` — vapour–air diffusivity D [m² s⁻¹] (caller evaluates it at T̄)
 ///
 /// Returns ṁ [kg m⁻² s⁻¹] and its derivatives; D is held constant in the derivatives.
@@ -665,7 +666,7 @@ pub fn stefan_diffusion_flux_kg_m2_s(
 ///
 /// Watmuff, J.H., Charters, W.W.S. & Proctor, D. (1977), "Solar and wind induced external
 /// coefficients for solar collectors", COMPLES 2, 56 (as quoted by Duffie & Beckman 2013,
-/// eq. 3.15.2, from memory): h_w = 2.8 + 3.0·v.
+/// §3.15, from memory): h_w = 2.8 + 3.0·v.
 ///
 /// * `wind_speed_m_s` — wind speed v near the cover [m s⁻¹]; negative values count as 0
 ///
@@ -697,7 +698,7 @@ const LOG_PROFILE_MIN_HEIGHT_OVER_ROUGHNESS: f64 = 1.5;
 /// surface layer, from memory): v(z) = v_ref·ln(z/z₀)/ln(z_ref/z₀).
 ///
 /// * `v_ref_m_s` — measured wind speed [m s⁻¹]; `z_ref_m` — its height (10 m at a standard
-///   station) [m]; `z_m` — wanted height [m]; `roughness_m` — roughness length z₀ [m]
+///   station) \[m\]; `z_m` — wanted height \[m\]; `roughness_m` — roughness length z₀ \[m\]
 ///   (≈0.03 m open country, ≈0.0002 m open sea, ≈0.1 m scattered buildings)
 ///
 /// *Notes*: both heights are clamped to at least 1.5·z₀ (common practice, no source) since
@@ -723,8 +724,8 @@ pub fn wind_speed_at_height_m_s(v_ref_m_s: f64, z_ref_m: f64, z_m: f64, roughnes
 ///   Nu = 0.54 Ra^(1/4) (10⁴…10⁷), 0.15 Ra^(1/3) (10⁷…10¹¹);
 /// * stable (cover colder than the air, the usual night case): Nu = 0.27 Ra^(1/4).
 ///
-/// * `t_surface_k`, `t_air_k` [K]; `tilt_rad` — tilt from horizontal [rad]
-/// * `length_m` — plate area / perimeter [m]
+/// * `t_surface_k`, `t_air_k` \[K\]; `tilt_rad` — tilt from horizontal \[rad\]
+/// * `length_m` — plate area / perimeter \[m\]
 /// * `conductivity_w_m_k`, `kinematic_viscosity_m2_s`, `prandtl` — air at the film temperature
 ///
 /// *Notes*: the two unstable branches are joined by their maximum (crossover Ra ≈ 4.7e6
@@ -774,7 +775,7 @@ pub fn combined_convection_w_m2_k(h_forced_w_m2_k: f64, h_natural_w_m2_k: f64) -
 ///
 /// Series resistances (Duffie & Beckman 2013, §6.4, bottom loss): U = (Σ Lᵢ/kᵢ + 1/h)⁻¹.
 ///
-/// * `layers` — (thickness [m], conductivity [W m⁻¹ K⁻¹]) from inside to outside
+/// * `layers` — (thickness \[m\], conductivity [W m⁻¹ K⁻¹]) from inside to outside
 /// * `h_outer_w_m2_k` — outer film coefficient [W m⁻² K⁻¹]; `f64::INFINITY` for none
 ///
 /// Returns `None` if a thickness is negative or not finite, a conductivity is not positive,

@@ -63,3 +63,49 @@ print(f"Stefan 60/55 C, 5 mm, D=2.6e-5: {m:.6e} kg/m2/s")
 # log wind profile
 print(f"log law 3 m/s at 10 m -> 1 m, z0=0.03: {3*math.log(1/0.03)/math.log(10/0.03):.6f}")
 print(f"U base 50mm/0.035 + h 5.7: {1/(0.05/0.035 + 1/5.7):.6f}")
+
+# ---- optics (Duffie & Beckman 2013 ch. 5 formulas) and sky
+
+
+def fresnel(theta1, n):
+    t2 = math.asin(math.sin(theta1) / n)
+    if theta1 == 0:
+        r = ((n - 1) / (n + 1)) ** 2
+        return t2, r, r
+    rs = math.sin(t2 - theta1) ** 2 / math.sin(t2 + theta1) ** 2
+    rp = math.tan(t2 - theta1) ** 2 / math.tan(t2 + theta1) ** 2
+    return t2, rs, rp
+
+
+def slab(theta1, n, K, L):
+    t2, rs, rp = fresnel(theta1, n)
+    ta = math.exp(-K * L / math.cos(t2))
+    out = []
+    for r in (rs, rp):
+        tau = ta * (1 - r) ** 2 / (1 - (r * ta) ** 2)
+        rho = r + (1 - r) ** 2 * ta ** 2 * r / (1 - (r * ta) ** 2)
+        alpha = (1 - ta) * (1 - r) / (1 - r * ta)
+        out.append((tau, alpha, rho))
+    tau_r = 0.5 * ((1 - rs) / (1 + rs) + (1 - rp) / (1 + rp))
+    return t2, ta, tau_r, [0.5 * (a + b) for a, b in zip(*out)]
+
+
+t2, ta, tau_r, (tau, alpha, rho) = slab(math.radians(60), 1.526, 32.0, 0.0023)
+print(f"glass 60deg: theta2={math.degrees(t2):.4f} tau_r={tau_r:.5f} tau_a={ta:.5f} tau={tau:.5f} alpha={alpha:.5f} rho={rho:.5f}")
+_, rs, _ = fresnel(0.0, 1.526)
+print(f"glass normal r={rs:.6f}; water normal r={((1.333-1)/(1.333+1))**2:.6f}")
+_, rs, rp = fresnel(math.radians(60), 1.333)
+print(f"water 60deg r={(rs+rp)/2:.6f}")
+mu = [0.237, 0.193, 0.167, 0.179]
+eta = [0.032, 0.45, 3.0, 35.0]
+for d in (0.01, 0.05, 0.10):
+    tau = sum(m * math.exp(-e * d) for m, e in zip(mu, eta))
+    print(f"Rabl-Nielsen absorbed in {d} m: {1-tau:.5f}")
+for b in (0, 45, 60):
+    print(f"BB80 beta={b}: sky {59.7-0.1388*b+0.001497*b*b:.4f} ground {90-0.5788*b+0.002693*b*b:.4f}")
+for t in (300.0, 283.15):
+    print(f"Swinbank {t}: {0.0552*t**1.5:.4f}")
+for tdp in (0.0, 20.0, -10.0):
+    x = tdp / 100
+    e = 0.711 + 0.56 * x + 0.73 * x * x
+    print(f"Berdahl-Martin Tdp={tdp}: eps={e:.6f}, T_sky(Ta=298.15)={e**0.25*298.15:.4f}")
