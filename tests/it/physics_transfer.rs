@@ -99,7 +99,7 @@ fn normal_incidence_reflectances() {
 #[test]
 fn fresnel_reflectance_matches_pvlib_fixture() {
     // Cross-implementation: pvlib 0.16.1 iam.physical with K = 0 (one interface), converted
-    // to reflectance by tests/reference/gen_transfer_fixtures.py. 1e-10: the CSV keeps 13
+    // to reflectance by tests/reference/gen_transfer.py. 1e-10: the CSV keeps 13
     // significant figures and both evaluate the same closed form.
     let text = include_str!("../data/fixtures/transfer_fresnel_pvlib.csv");
     let mut rows = 0;

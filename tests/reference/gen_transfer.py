@@ -2,7 +2,8 @@
 
 Plain Python (math only): each value is evaluated straight from the published formula named
 beside it, so the Rust implementation is checked against a second, separately written one.
-Run: python3 tests/reference/gen_transfer.py
+Run from the repository root: python3 tests/reference/gen_transfer.py
+(it prints the check values and rewrites tests/data/fixtures/transfer_fresnel_pvlib.csv).
 """
 import math
 
@@ -109,3 +110,27 @@ for tdp in (0.0, 20.0, -10.0):
     x = tdp / 100
     e = 0.711 + 0.56 * x + 0.73 * x * x
     print(f"Berdahl-Martin Tdp={tdp}: eps={e:.6f}, T_sky(Ta=298.15)={e**0.25*298.15:.4f}")
+
+
+# ---- fixture: tests/data/fixtures/transfer_fresnel_pvlib.csv
+# Unpolarised Fresnel reflectance of one air-to-medium interface from pvlib (a general-purpose
+# PV library). pvlib.iam.physical with K = 0 and no coating models a single interface:
+# IAM = (1 - r(theta)) / (1 - r(0)), so r(theta) = 1 - IAM * (1 - r(0)), r(0) = ((n-1)/(n+1))^2.
+# Generated with pvlib 0.16.1 (versions are written into the CSV header). Run from the repo root.
+
+import numpy as np  # noqa: E402
+import pvlib  # noqa: E402
+from pvlib import iam  # noqa: E402
+
+rows = []
+for n in (1.526, 1.333):
+    r0 = ((n - 1) / (n + 1)) ** 2
+    for aoi in (0.0, 10.0, 30.0, 45.0, 60.0, 70.0, 80.0, 85.0, 89.0):
+        m = float(iam.physical(np.array([aoi]), n=n, K=0.0, L=0.002)[0])
+        rows.append((n, aoi, 1.0 - m * (1.0 - r0)))
+
+with open("tests/data/fixtures/transfer_fresnel_pvlib.csv", "w") as f:
+    f.write(f"# pvlib {pvlib.__version__}, numpy {np.__version__}: iam.physical(K=0), r = 1 - IAM (1 - r0)\n")
+    f.write("refractive_index,incidence_deg,reflectance\n")
+    for n, aoi, r in rows:
+        f.write(f"{n},{aoi},{r:.12e}\n")
