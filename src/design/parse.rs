@@ -37,6 +37,16 @@ impl Files for Disk {
 /// The top-level keys of a design file.
 const ROOT_FIELDS: [&str; 4] = ["project", "materials", "site", "variant"];
 
+/// The type of a value with its article, for messages ("an integer", "a table").
+fn a_type(v: &DeValue<'_>) -> String {
+    let t = v.type_str();
+    if t.starts_with(['a', 'e', 'i', 'o', 'u']) {
+        format!("an {t}")
+    } else {
+        format!("a {t}")
+    }
+}
+
 /// A whole-file issue.
 fn file_issue(file: &Path, message: String) -> DesignIssue {
     DesignIssue {
@@ -151,8 +161,8 @@ fn read_materials(
         r.error(
             "materials",
             format!(
-                "expected a string (a file path), got a {}",
-                v.get_ref().type_str()
+                "expected a string (a file path), got {}",
+                a_type(v.get_ref())
             ),
         );
         return (None, None);
@@ -228,10 +238,7 @@ fn as_table<'a, 'i>(
     match v.get_ref() {
         DeValue::Table(t) => Some(t),
         other => {
-            r.error(
-                path,
-                format!("expected a table, got a {}", other.type_str()),
-            );
+            r.error(path, format!("expected a table, got {}", a_type(other)));
             None
         }
     }
@@ -262,8 +269,8 @@ fn take_tag(
         r.error(
             &field,
             format!(
-                "expected a string, got a {}; allowed: {choices}",
-                v.get_ref().type_str()
+                "expected a string, got {}; allowed: {choices}",
+                a_type(v.get_ref())
             ),
         );
         return None;
@@ -361,8 +368,8 @@ fn read_variants(r: &mut Reader<'_>, root: &DeTable<'_>) -> Option<Vec<Variant>>
         r.error(
             "variant",
             format!(
-                "expected an array of tables ([[variant]]), got a {}",
-                v.get_ref().type_str()
+                "expected an array of tables ([[variant]]), got {}",
+                a_type(v.get_ref())
             ),
         );
         return None;

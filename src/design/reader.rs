@@ -76,6 +76,17 @@ fn expected_names(message: &str) -> Vec<&str> {
     message[pos..].split('`').skip(1).step_by(2).collect()
 }
 
+/// Serde's type names in words a design-file writer knows.
+fn plain_types(message: &str) -> String {
+    message
+        .replace("expected f64", "expected a number")
+        .replace(
+            "expected u32",
+            "expected a whole number from 0 to 4294967295",
+        )
+        .replace("expected a boolean", "expected true or false")
+}
+
 /// The first backticked name in a serde message.
 fn first_ticked(message: &str) -> Option<&str> {
     message.split('`').nth(1)
@@ -140,7 +151,9 @@ impl<'t> Reader<'t> {
     /// read again, so one pass reports them all. `extra_fields` are further valid names for
     /// "did you mean" hints (fields of the same table read elsewhere).
     ///
-    /// Returns `None` when `T` could not be built (e.g. a required field is missing).
+    /// Returns `None` when `T` could not be built or a value had to be dropped for its type, so
+    /// later checks of the same part do not report consequences of an error already reported.
+    /// Unknown fields alone still return the value (with issues recorded).
     pub fn read<T: DeserializeOwned>(
         &mut self,
         value: &Spanned<DeValue<'_>>,
@@ -148,10 +161,13 @@ impl<'t> Reader<'t> {
         extra_fields: &[&str],
     ) -> Option<T> {
         let mut value = value.clone();
-        let mut dropped: HashSet<String> = HashSet::new();
+        // Fields already reported (dropped, or hinted at by a "did you mean"): a later
+        // "missing field" for them would only repeat the same mistake.
+        let mut reported: HashSet<String> = HashSet::new();
+        let mut clean = true;
         for _ in 0..MAX_RETRIES {
             let err = match T::deserialize(value.clone().into_deserializer()) {
-                Ok(t) => return Some(t),
+                Ok(t) => return clean.then_some(t),
                 Err(e) => e,
             };
             let span = err.span();
@@ -165,24 +181,31 @@ impl<'t> Reader<'t> {
             if msg.starts_with("missing field") {
                 let field = first_ticked(&msg).unwrap_or("?");
                 let full = spans::join(&at, field);
-                if !dropped.contains(&full) {
+                if !reported.contains(&full) {
                     let issue = self.make(span, &full, format!("missing required field `{field}`"));
                     self.issues.push(issue);
                 }
                 return None;
             }
+            // Dropping an unknown field changes no known value; dropping a mistyped one lets a
+            // default stand in for it, which later checks must not see.
+            if !msg.starts_with("unknown field") {
+                clean = false;
+            }
             let message = if msg.starts_with("unknown field") {
                 let given = first_ticked(&msg).unwrap_or("?");
                 let mut names = expected_names(&msg);
                 names.extend_from_slice(extra_fields);
-                let hint = spans::hint(given, names.iter().copied());
-                if hint.is_empty() {
-                    format!(
+                match spans::did_you_mean(given, names.iter().copied()) {
+                    Some(best) => {
+                        let parent = at.rsplit_once('.').map_or("", |(p, _)| p);
+                        reported.insert(spans::join(parent, best));
+                        format!("unknown field `{given}`; did you mean `{best}`?")
+                    }
+                    None => format!(
                         "unknown field `{given}`; allowed here: {}",
                         names.join(", ")
-                    )
-                } else {
-                    format!("unknown field `{given}`{hint}")
+                    ),
                 }
             } else if msg.starts_with("unknown variant") {
                 let given = first_ticked(&msg).unwrap_or("?");
@@ -196,6 +219,8 @@ impl<'t> Reader<'t> {
                         .collect::<Vec<_>>()
                         .join(", ")
                 )
+            } else if msg.starts_with("invalid type") || msg.starts_with("invalid value") {
+                plain_types(&msg)
             } else {
                 format!("{msg} (got {})", self.snippet(span.as_ref()))
             };
@@ -208,7 +233,7 @@ impl<'t> Reader<'t> {
             if !(spans::remove_key_at(table, &span) || remove_containing(table, &span)) {
                 return None;
             }
-            dropped.insert(at);
+            reported.insert(at);
         }
         None
     }

@@ -27,7 +27,8 @@ pub fn line_col(text: &str, offset: usize) -> (usize, usize) {
     (line, col)
 }
 
-/// The candidate closest to `given`, if one is close enough to be a plausible typo.
+/// The candidate closest to `given`, if one is close enough to be a plausible typo (and
+/// `given` is not itself a candidate).
 ///
 /// Closeness: Damerau–Levenshtein distance of at most 2, or a Jaro–Winkler similarity of at
 /// least 0.85 (which catches a forgotten unit suffix such as `cover_tilt` for
@@ -41,7 +42,8 @@ where
         let dist = strsim::damerau_levenshtein(given, cand);
         let jw = strsim::jaro_winkler(given, cand);
         if dist == 0 {
-            continue;
+            // The name is valid as given: nothing to suggest.
+            return None;
         }
         let close = (dist <= 2 && cand.len() > 2) || jw >= 0.85;
         if close && best.is_none_or(|(_, b)| jw > b) {

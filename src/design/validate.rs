@@ -89,8 +89,9 @@ fn text_len(r: &mut Reader<'_>, path: &str, s: &str, max: usize) {
     }
 }
 
-fn currency(r: &mut Reader<'_>, path: &str, c: &str) {
-    if c.len() != 3 || !c.bytes().all(|b| b.is_ascii_uppercase()) {
+fn currency(r: &mut Reader<'_>, path: &str, c: &str) -> bool {
+    let ok = c.len() == 3 && c.bytes().all(|b| b.is_ascii_uppercase());
+    if !ok {
         r.error(
             path,
             format!(
@@ -98,13 +99,15 @@ fn currency(r: &mut Reader<'_>, path: &str, c: &str) {
             ),
         );
     }
+    ok
 }
 
 /// `[project]`.
 pub(crate) fn project(r: &mut Reader<'_>, p: &Project, library: Option<&Library>) {
     text_len(r, "project.title", &p.title, 200);
-    currency(r, "project.currency", &p.currency);
+    let currency_ok = currency(r, "project.currency", &p.currency);
     if let Some(lib) = library
+        && currency_ok
         && lib.library.currency != p.currency
     {
         r.warn(
@@ -847,7 +850,7 @@ fn unit_interval(r: &mut Reader<'_>, path: String, v: f64) {
 /// The materials library.
 pub(crate) fn library(r: &mut Reader<'_>, lib: &Library) {
     text_len(r, "library.name", &lib.library.name, 200);
-    currency(r, "library.currency", &lib.library.currency);
+    let _ = currency(r, "library.currency", &lib.library.currency);
     let mut seen: HashMap<&str, usize> = HashMap::new();
     for (i, it) in lib.items.iter().enumerate() {
         let p = spans::index("item", i);
