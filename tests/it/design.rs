@@ -252,6 +252,26 @@ fn a_shallow_cover_is_a_warning_not_an_error() {
 }
 
 #[test]
+fn check_prints_warnings_in_its_summary() {
+    let dir = tempfile::tempdir().unwrap();
+    let mat = dir.path().join("materials");
+    std::fs::create_dir(&mat).unwrap();
+    std::fs::write(mat.join("demo-market.toml"), design::DEMO_LIBRARY).unwrap();
+    let path = dir.path().join("shallow.toml");
+    std::fs::write(&path, small_design("5", "")).unwrap();
+    let out = Command::cargo_bin("stillbench")
+        .unwrap()
+        .arg("check")
+        .arg(&path)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0));
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(stdout.contains("warning:"), "{stdout}");
+    assert!(stdout.contains("variant[1].cover_tilt_deg"), "{stdout}");
+}
+
+#[test]
 fn defaults_are_applied() {
     let loaded =
         parse_design_str(&small_design("15", ""), Path::new("x.toml"), &designs_dir()).unwrap();
@@ -380,6 +400,17 @@ proptest! {
                     }
                 }
             }
+        }
+    }
+
+    /// Mutated materials libraries are rejected or accepted, never a panic.
+    #[test]
+    fn parsing_mutated_libraries_never_panics(
+        ops in prop::collection::vec((any::<u8>(), any::<usize>(), any::<usize>()), 1..8)
+    ) {
+        let text = mutate(design::DEMO_LIBRARY, &ops);
+        if let Err(errors) = design::parse_library(text.as_bytes(), Path::new("lib.toml")) {
+            prop_assert!(!errors.0.is_empty());
         }
     }
 
