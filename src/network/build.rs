@@ -165,7 +165,8 @@ pub struct Node {
     pub capacity_j_k: f64,
     /// Whether the node holds water whose mass changes (brine, wick film).
     pub holds_water: bool,
-    /// Below this water mass the node counts as dry and stops evaporating [kg].
+    /// When the water in the node (brine less its salt) is at or below this, the node counts
+    /// as dry and stops evaporating [kg].
     pub dry_mass_kg: f64,
 }
 
@@ -263,7 +264,10 @@ impl Network {
     }
     /// Find a boundary by name.
     pub fn boundary_id(&self, name: &str) -> Option<BoundaryId> {
-        self.boundaries.iter().position(|n| n == name).map(BoundaryId)
+        self.boundaries
+            .iter()
+            .position(|n| n == name)
+            .map(BoundaryId)
     }
     /// Find a link by name.
     pub fn link_id(&self, name: &str) -> Option<LinkId> {
@@ -306,8 +310,8 @@ impl NetworkBuilder {
     }
 
     /// Add a node holding water whose mass and salt are state (brine, wick film), with the
-    /// fixed capacity of its solid parts `capacity_j_k` [J K⁻¹] and the mass below which it
-    /// counts as dry `dry_mass_kg` [kg].
+    /// fixed capacity of its solid parts `capacity_j_k` [J K⁻¹] and the water (brine less
+    /// salt) at or below which it counts as dry `dry_mass_kg` [kg].
     pub fn water_node(&mut self, name: &str, capacity_j_k: f64, dry_mass_kg: f64) -> NodeId {
         self.nodes.push(Node {
             name: name.to_owned(),
@@ -429,8 +433,22 @@ impl NetworkBuilder {
             });
         }
         for n in &self.nodes {
-            check(&n.name, "capacity_j_k", n.capacity_j_k, 0.0, 1e12, "[0, 1e12] J/K")?;
-            check(&n.name, "dry_mass_kg", n.dry_mass_kg, 0.0, 1e6, "[0, 1e6] kg")?;
+            check(
+                &n.name,
+                "capacity_j_k",
+                n.capacity_j_k,
+                0.0,
+                1e12,
+                "[0, 1e12] J/K",
+            )?;
+            check(
+                &n.name,
+                "dry_mass_kg",
+                n.dry_mass_kg,
+                0.0,
+                1e6,
+                "[0, 1e6] kg",
+            )?;
         }
         let n_nodes = self.nodes.len();
         let n_bound = self.boundaries.len();
@@ -502,9 +520,7 @@ impl NetworkBuilder {
                     match (l.a, l.b) {
                         (End::Node(h), End::Node(_)) if self.nodes[h.0].holds_water => {}
                         _ => {
-                            return Err(bad(
-                                "an enclosure runs from a water node to another node",
-                            ));
+                            return Err(bad("an enclosure runs from a water node to another node"));
                         }
                     }
                 }

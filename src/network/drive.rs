@@ -143,7 +143,7 @@ impl<'n> Simulation<'n> {
         control.validate()?;
         let solver = Solver::new(net, settings)?;
         let n = net.nodes().len();
-        if state.t_k.len() != n || state.water_kg.len() != n {
+        if state.t_k.len() != n || state.brine_kg.len() != n {
             return Err(NetworkError::BadValue {
                 item: "simulation".to_owned(),
                 what: "state length",
@@ -227,7 +227,6 @@ impl<'n> Simulation<'n> {
         };
         let mut remaining = interval_s;
         let mut dt = self.next_dt_s.clamp(c.min_step_s, c.max_step_s);
-        let mut aiming_at_dry_out: Option<usize> = None;
         // Round-off in `remaining` must not leave a sliver step.
         let sliver = 1e-9 * interval_s;
         while remaining > sliver {
@@ -247,7 +246,6 @@ impl<'n> Simulation<'n> {
                         self.state.clone_from(&self.saved);
                         summary.retried += 1;
                         dt = (h * (0.9 * c.max_change_k / change).max(0.25)).max(c.min_step_s);
-                        aiming_at_dry_out = None;
                         continue;
                     }
                     self.balance.book(net, &self.record, &self.state)?;
@@ -255,9 +253,15 @@ impl<'n> Simulation<'n> {
                     summary.steps += 1;
                     summary.newton_iterations += iterations;
                     summary.shortest_step_s = summary.shortest_step_s.min(h);
-                    if let Some(node) = aiming_at_dry_out.take() {
-                        summary.dry_outs.push((self.state.time_s, node));
-                        dt = c.initial_step_s.min(c.max_step_s);
+                    let before = summary.dry_outs.len();
+                    for (i, nr) in self.record.nodes.iter().enumerate() {
+                        if nr.dried_out {
+                            summary.dry_outs.push((self.state.time_s, i));
+                        }
+                    }
+                    if summary.dry_outs.len() > before {
+                        // The node's capacity has just vanished: start small again.
+                        dt = c.initial_step_s;
                     } else if change < 0.5 * c.max_change_k {
                         dt = (dt.max(h) * c.growth).min(c.max_step_s);
                     } else {
@@ -283,7 +287,6 @@ impl<'n> Simulation<'n> {
                         });
                     }
                     dt = time_to_event_s;
-                    aiming_at_dry_out = Some(node);
                 }
                 StepOutcome::Failed { reason } => {
                     summary.retried += 1;
@@ -295,7 +298,6 @@ impl<'n> Simulation<'n> {
                         });
                     }
                     dt = (0.5 * h).max(c.min_step_s);
-                    aiming_at_dry_out = None;
                 }
             }
         }
@@ -310,7 +312,7 @@ impl<'n> Simulation<'n> {
             .iter()
             .zip(&self.record.nodes)
             .enumerate()
-            .filter(|(i, (n, _))| n.capacity_j_k > 0.0 || self.saved.water_kg[*i] > 0.0)
+            .filter(|(i, (n, _))| n.capacity_j_k > 0.0 || self.saved.brine_kg[*i] > 0.0)
             .map(|(_, (_, r))| r.temperature_change_k.abs())
             .fold(0.0, f64::max)
     }

@@ -52,18 +52,17 @@ mod state;
 
 pub use balance::{BalanceError, EnergyBalance};
 pub use build::{
-    BoundaryId, End, Link, LinkId, LinkKind, LossPath, Network, NetworkBuilder, NetworkError,
-    Node, NodeId,
+    BoundaryId, End, Link, LinkId, LinkKind, LossPath, Network, NetworkBuilder, NetworkError, Node,
+    NodeId,
 };
 pub use drive::{AdvanceError, AdvanceSummary, Simulation, StepControl};
 pub use models::{
     ConductanceModel, DUNKLE_LEWIS_FACTOR_K_PA, EnclosureFlux, EnclosureModel,
-    FixedCoefficientEnclosure, LinkFlow, PowerLawConductance, SimpleWater, WaterProperties,
-    malik_saturation_pressure_derivative_pa_k, malik_saturation_pressure_pa,
+    FixedCoefficientEnclosure, LinkFlow, PowerLawConductance, SALT_SATURATION_G_KG, SimpleWater,
+    WaterProperties, malik_saturation_pressure_derivative_pa_k, malik_saturation_pressure_pa,
     nayar_vapour_pressure_ratio,
 };
 pub use solver::{
-    FailReason, LinkRecord, NodeRecord, Solver, SolverSettings, StepEvent, StepOutcome,
-    StepRecord,
+    FailReason, LinkRecord, NodeRecord, Solver, SolverSettings, StepEvent, StepOutcome, StepRecord,
 };
 pub use state::{Inputs, State, TEMPERATURE_RANGE_K};

@@ -225,6 +225,8 @@ pub fn nayar_vapour_pressure_ratio(salinity_g_kg: f64) -> f64 {
 ///
 /// * liquid: h_f = `cp_liquid_j_kg_k` · (T − 273.16 K), the triple point as zero
 ///   (IAPWS convention)
+/// * vapour-pressure lowering: Nayar's ratio, with the salinity capped at
+///   [`SALT_SATURATION_G_KG`]
 /// * latent heat: h_fg = 2.501e6 − 2370·(T − 273.15 K) J kg⁻¹ (a common linear fit, from
 ///   memory; 50 °C → 2.3825 MJ kg⁻¹ against 2.38195 MJ kg⁻¹ from IAPWS-95, REFERENCES.md §5)
 ///
@@ -246,6 +248,11 @@ impl Default for SimpleWater {
     }
 }
 
+/// Salinity at which salt starts to crystallise [g kg⁻¹]: NaCl saturates near 26.4 wt %
+/// (REFERENCES.md §8, from memory). Beyond it the brine stays saturated and the extra salt
+/// is a crust, so the vapour-pressure lowering stops growing.
+pub const SALT_SATURATION_G_KG: f64 = 264.0;
+
 /// Triple point of water [K], the zero of liquid enthalpy (IAPWS convention).
 const TRIPLE_POINT_K: f64 = 273.16;
 
@@ -257,7 +264,7 @@ impl WaterProperties for SimpleWater {
         malik_saturation_pressure_derivative_pa_k(t_k)
     }
     fn vapour_pressure_ratio(&self, salinity_g_kg: f64) -> f64 {
-        nayar_vapour_pressure_ratio(salinity_g_kg)
+        nayar_vapour_pressure_ratio(salinity_g_kg.clamp(0.0, SALT_SATURATION_G_KG))
     }
     fn liquid_enthalpy_j_kg(&self, t_k: f64) -> f64 {
         self.cp_liquid_j_kg_k * (t_k - TRIPLE_POINT_K)

@@ -218,6 +218,9 @@ pub struct NodeRecord {
     pub drain_enthalpy_w: f64,
     /// Temperature change over the step [K].
     pub temperature_change_k: f64,
+    /// The node was wet at the start of the step and is dry (water at or below its
+    /// `dry_mass_kg`) at the end: a dry-out event.
+    pub dried_out: bool,
 }
 
 /// Everything one converged step did. Reuse one record across steps: it is resized only when
@@ -347,7 +350,7 @@ impl<'n> Solver<'n> {
                 what: "inputs were made for another network",
             });
         }
-        if state.t_k.len() != n || state.water_kg.len() != n || state.salt_kg.len() != n {
+        if state.t_k.len() != n || state.brine_kg.len() != n || state.salt_kg.len() != n {
             return Err(FailReason::InvalidInput {
                 what: "state was made for another network",
             });
@@ -358,7 +361,11 @@ impl<'n> Solver<'n> {
             });
         }
         let (lo, hi) = TEMPERATURE_RANGE_K;
-        if state.t_k.iter().any(|t| !(t.is_finite() && *t >= lo && *t <= hi)) {
+        if state
+            .t_k
+            .iter()
+            .any(|t| !(t.is_finite() && *t >= lo && *t <= hi))
+        {
             return Err(FailReason::InvalidInput {
                 what: "a node temperature is outside [150, 500] K",
             });
@@ -367,9 +374,9 @@ impl<'n> Solver<'n> {
         ws.t0.copy_from_slice(&state.t_k);
         self.ws.t.copy_from_slice(&state.t_k);
         for (i, node) in net.nodes.iter().enumerate() {
-            let m = state.water_kg[i];
+            let m = state.brine_kg[i];
             ws.m0[i] = if node.holds_water { m } else { 0.0 };
-            ws.wet[i] = node.holds_water && m > node.dry_mass_kg;
+            ws.wet[i] = node.holds_water && m - state.salt_kg[i] > node.dry_mass_kg;
             ws.p_ratio[i] = net
                 .water
                 .vapour_pressure_ratio(salinity(m, state.salt_kg[i]));
@@ -440,20 +447,23 @@ impl<'n> Solver<'n> {
 
         if dt_s.is_finite() {
             // Mass update from the converged flows; stop at a dry-out instead of stepping
-            // through the kink.
+            // through the kink. "Dry" is judged on the water in the brine (brine − salt).
             let mut first_event: Option<StepEvent> = None;
             for (i, node) in net.nodes.iter().enumerate() {
                 if !node.holds_water {
                     continue;
                 }
-                let m0 = self.consts.m0[i];
-                let m1 = m0 + dt_s * net_inflow_kg_s(net, record, i);
-                if m1 < 0.0 {
-                    let target = (0.5 * node.dry_mass_kg).min(0.5 * m0);
-                    let time = (dt_s * (m0 - target) / (m0 - m1)).max(0.0);
-                    if first_event.is_none_or(|StepEvent::DryOut { time_to_event_s, .. }| {
-                        time < time_to_event_s
-                    }) {
+                let (m1, salt1) = self.masses_after(state, inputs, record, dt_s, i);
+                let w0 = self.consts.m0[i] - state.salt_kg[i];
+                let w1 = m1 - salt1;
+                if w1 < 0.0 {
+                    let target = (0.5 * node.dry_mass_kg).min(0.5 * w0.max(0.0));
+                    let time = (dt_s * (w0 - target) / (w0 - w1)).max(0.0);
+                    if first_event.is_none_or(
+                        |StepEvent::DryOut {
+                             time_to_event_s, ..
+                         }| { time < time_to_event_s },
+                    ) {
                         first_event = Some(StepEvent::DryOut {
                             node: i,
                             time_to_event_s: time,
@@ -468,15 +478,10 @@ impl<'n> Solver<'n> {
                 if !node.holds_water {
                     continue;
                 }
-                let m0 = self.consts.m0[i];
-                let s0 = salinity(m0, state.salt_kg[i]);
-                let nr = &record.nodes[i];
-                state.water_kg[i] = m0 + dt_s * net_inflow_kg_s(net, record, i);
-                let salt = state.salt_kg[i]
-                    + dt_s
-                        * (nr.feed_kg_s * inputs.feed_salinity_g_kg[i] - nr.drain_kg_s * s0)
-                        / 1000.0;
-                state.salt_kg[i] = salt.max(0.0);
+                let (m1, salt1) = self.masses_after(state, inputs, record, dt_s, i);
+                state.brine_kg[i] = m1;
+                state.salt_kg[i] = salt1;
+                record.nodes[i].dried_out = self.consts.wet[i] && m1 - salt1 <= node.dry_mass_kg;
             }
             state.time_s += dt_s;
         }
@@ -485,6 +490,29 @@ impl<'n> Solver<'n> {
         }
         state.t_k.copy_from_slice(&self.ws.t);
         StepOutcome::Converged { iterations }
+    }
+
+    /// Brine and salt of water node `i` at the end of a converged step [kg]: evaporation
+    /// takes pure water, feed brings salt at the feed salinity, the drain takes it at the
+    /// salinity of the step's start.
+    fn masses_after(
+        &self,
+        state: &State,
+        inputs: &Inputs,
+        record: &StepRecord,
+        dt_s: f64,
+        i: usize,
+    ) -> (f64, f64) {
+        let m0 = self.consts.m0[i];
+        let salt0 = state.salt_kg[i];
+        let nr = &record.nodes[i];
+        let m1 = m0 + dt_s * net_inflow_kg_s(self.net, record, i);
+        let salt1 = salt0
+            + dt_s
+                * (nr.feed_kg_s * inputs.feed_salinity_g_kg[i]
+                    - nr.drain_kg_s * salinity(m0, salt0))
+                / 1000.0;
+        (m1, salt1.clamp(0.0, m1.max(0.0)))
     }
 
     fn newton(&mut self, inputs: &Inputs, inv_dt: f64) -> Result<u32, FailReason> {
@@ -509,11 +537,10 @@ impl<'n> Solver<'n> {
                 return Err(FailReason::NonFinite { iteration: k });
             }
             let worst = largest(&ws.r);
-            let converged = ws
-                .r
-                .iter()
-                .zip(&ws.scale)
-                .all(|(r, sc)| r.abs() <= set.abs_tolerance_w + set.rel_tolerance * sc);
+            let converged =
+                ws.r.iter()
+                    .zip(&ws.scale)
+                    .all(|(r, sc)| r.abs() <= set.abs_tolerance_w + set.rel_tolerance * sc);
             if converged {
                 return Ok(k);
             }
@@ -659,11 +686,7 @@ fn end_t(e: End, t: &[f64], inputs: &Inputs) -> f64 {
 /// Flow of a heat-only link (conductance, variable conductance, radiation).
 fn heat_link(kind: &LinkKind, ua_input_w_k: f64, ta: f64, tb: f64) -> (f64, f64, f64) {
     match kind {
-        LinkKind::Conductance { .. } => (
-            ua_input_w_k * (ta - tb),
-            ua_input_w_k,
-            -ua_input_w_k,
-        ),
+        LinkKind::Conductance { .. } => (ua_input_w_k * (ta - tb), ua_input_w_k, -ua_input_w_k),
         LinkKind::Variable { model } => {
             let f = model.heat_flow(ta, tb);
             (f.q_w, f.dq_dta_w_k, f.dq_dtb_w_k)

@@ -26,7 +26,7 @@ const T_ALLOWED: &str = "[150, 500] K";
 #[derive(Debug, Clone, PartialEq)]
 pub struct State {
     pub(crate) t_k: Vec<f64>,
-    pub(crate) water_kg: Vec<f64>,
+    pub(crate) brine_kg: Vec<f64>,
     pub(crate) salt_kg: Vec<f64>,
     pub(crate) time_s: f64,
 }
@@ -42,7 +42,7 @@ impl State {
     }
     /// Mass of brine (water plus salt) held by a node [kg] (0 for a node without water).
     pub fn brine_kg(&self, node: NodeId) -> Option<f64> {
-        self.water_kg.get(node.0).copied()
+        self.brine_kg.get(node.0).copied()
     }
     /// Salt held by a node [kg].
     pub fn salt_kg(&self, node: NodeId) -> Option<f64> {
@@ -50,7 +50,7 @@ impl State {
     }
     /// Absolute salinity of a node's brine [g kg⁻¹] (0 when empty).
     pub fn salinity_g_kg(&self, node: NodeId) -> Option<f64> {
-        let m = self.water_kg.get(node.0)?;
+        let m = self.brine_kg.get(node.0)?;
         let s = self.salt_kg.get(node.0)?;
         Some(salinity(*m, *s))
     }
@@ -89,7 +89,7 @@ impl State {
             what: "node",
             index: node.0,
         })?;
-        if !n.holds_water || node.0 >= self.water_kg.len() {
+        if !n.holds_water || node.0 >= self.brine_kg.len() {
             return Err(NetworkError::NotWater {
                 node: n.name.clone(),
             });
@@ -98,9 +98,14 @@ impl State {
             return Err(bad(&n.name, "brine_kg", brine_kg, "[0, 1e7] kg"));
         }
         if !(salinity_g_kg.is_finite() && (0.0..=300.0).contains(&salinity_g_kg)) {
-            return Err(bad(&n.name, "salinity_g_kg", salinity_g_kg, "[0, 300] g/kg"));
+            return Err(bad(
+                &n.name,
+                "salinity_g_kg",
+                salinity_g_kg,
+                "[0, 300] g/kg",
+            ));
         }
-        self.water_kg[node.0] = brine_kg;
+        self.brine_kg[node.0] = brine_kg;
         self.salt_kg[node.0] = brine_kg * salinity_g_kg / 1000.0;
         Ok(())
     }
@@ -282,7 +287,7 @@ impl Network {
         let n = self.nodes.len();
         Ok(State {
             t_k: vec![t_k; n],
-            water_kg: vec![0.0; n],
+            brine_kg: vec![0.0; n],
             salt_kg: vec![0.0; n],
             time_s: 0.0,
         })
@@ -321,7 +326,7 @@ impl Network {
             .enumerate()
             .map(|(i, n)| {
                 let t = state.t_k.get(i).copied().unwrap_or(0.0);
-                let m = state.water_kg.get(i).copied().unwrap_or(0.0);
+                let m = state.brine_kg.get(i).copied().unwrap_or(0.0);
                 let water = if m > 0.0 {
                     m * self.water.liquid_enthalpy_j_kg(t)
                 } else {
