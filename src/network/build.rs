@@ -2,7 +2,7 @@
 
 use std::sync::Arc;
 
-use super::models::{ConductanceModel, EnclosureModel, SimpleWater, WaterProperties};
+use super::models::{ConductanceModel, EnclosureModel, SeawaterProperties, WaterProperties};
 
 /// Index of an unknown-temperature node in its network.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
@@ -292,7 +292,7 @@ impl NetworkBuilder {
         Self::default()
     }
 
-    /// Use this water property set (default [`SimpleWater`]).
+    /// Use this water property set (default [`SeawaterProperties`]).
     pub fn water_properties(&mut self, water: Arc<dyn WaterProperties>) -> &mut Self {
         self.water = Some(water);
         self
@@ -563,7 +563,7 @@ impl NetworkBuilder {
             water: self
                 .water
                 .clone()
-                .unwrap_or_else(|| Arc::new(SimpleWater::default())),
+                .unwrap_or_else(|| Arc::new(SeawaterProperties)),
             bandwidth,
         })
     }

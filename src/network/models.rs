@@ -7,6 +7,9 @@
 
 use std::fmt::Debug;
 
+use crate::physics::heat_transfer::{EnclosureAir, InternalCorrelation, enclosure_transfer};
+use crate::physics::{seawater, water};
+
 /// A heat flow between the two ends of a link and its partial derivatives.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct LinkFlow {
@@ -232,7 +235,8 @@ pub fn nayar_vapour_pressure_ratio(salinity_g_kg: f64) -> f64 {
 ///
 /// Notes: brine enthalpy is taken as that of pure water (seawater's c_p is a few per cent
 /// lower); the energy balance still closes because the solver and the balance share these
-/// functions. Replace by the IAPWS-based routines of [`crate::physics`] for predictions.
+/// functions. For predictions use [`SeawaterProperties`] (the network's default); this set
+/// is for quick hand checks, since every value can be worked out on paper.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct SimpleWater {
     /// Liquid specific heat [J kg⁻¹ K⁻¹].
@@ -277,6 +281,91 @@ impl WaterProperties for SimpleWater {
     }
     fn latent_heat_derivative_j_kg_k(&self, _t_k: f64) -> f64 {
         -2370.0
+    }
+}
+
+/// The network's default property set, from [`crate::physics`]: IAPWS-IF97 saturation
+/// pressure and its analytic slope ([`water::saturation_pressure_pa`]), Sharqawy et al.'s
+/// latent heat and liquid enthalpy ([`water::latent_heat_j_kg`],
+/// [`water::liquid_enthalpy_j_kg`], with c_p its exact derivative), and Nayar et al.'s
+/// vapour-pressure lowering ([`seawater::vapour_pressure_ratio`]).
+///
+/// Notes: the salinity given to the lowering is capped at [`SALT_SATURATION_G_KG`] (salt
+/// beyond it crystallises); Nayar's fit is stated to 120 g/kg, so 120–264 g/kg is an
+/// extrapolation. The latent heat is the pure-water value: the per-kilogram-of-vapour
+/// correction for salinity is at most 0.1 % at 120 g/kg
+/// ([`seawater::latent_heat_per_kg_vapour_j_kg`]). The brine's enthalpy is that of pure water
+/// at the same temperature.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct SeawaterProperties;
+
+impl WaterProperties for SeawaterProperties {
+    fn saturation_pressure_pa(&self, t_k: f64) -> f64 {
+        water::saturation_pressure_pa(t_k)
+    }
+    fn saturation_pressure_derivative_pa_k(&self, t_k: f64) -> f64 {
+        water::saturation_pressure_derivative_pa_k(t_k)
+    }
+    fn vapour_pressure_ratio(&self, salinity_g_kg: f64) -> f64 {
+        seawater::vapour_pressure_ratio(salinity_g_kg.clamp(0.0, SALT_SATURATION_G_KG))
+    }
+    fn liquid_enthalpy_j_kg(&self, t_k: f64) -> f64 {
+        water::liquid_enthalpy_j_kg(t_k)
+    }
+    fn liquid_heat_capacity_j_kg_k(&self, t_k: f64) -> f64 {
+        water::liquid_specific_heat_j_kg_k(t_k)
+    }
+    fn latent_heat_j_kg(&self, t_k: f64) -> f64 {
+        water::latent_heat_j_kg(t_k)
+    }
+    fn latent_heat_derivative_j_kg_k(&self, t_k: f64) -> f64 {
+        water::latent_heat_derivative_j_kg_k(t_k)
+    }
+}
+
+/// Internal transfer by one of the published correlations of
+/// [`crate::physics::heat_transfer::enclosure_transfer`] (Dunkle, Kumar–Tiwari, inclined
+/// enclosure), with the enclosure's air properties and geometry held fixed.
+///
+/// Notes: the air properties are fixed for the life of the network (as the correlation
+/// expects them fixed within a Newton iteration); a variant that wants them to follow the
+/// weather builds its network with values for the season.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CorrelationEnclosure {
+    /// Which correlation.
+    pub correlation: InternalCorrelation,
+    /// Air properties and characteristic length.
+    pub air: EnclosureAir,
+}
+
+impl EnclosureModel for CorrelationEnclosure {
+    fn transfer(
+        &self,
+        t_hot_k: f64,
+        t_cold_k: f64,
+        p_hot_pa: f64,
+        dp_hot_dt_pa_k: f64,
+        p_cold_pa: f64,
+        dp_cold_dt_pa_k: f64,
+    ) -> EnclosureFlux {
+        let t = enclosure_transfer(
+            &self.correlation,
+            t_hot_k,
+            t_cold_k,
+            p_hot_pa,
+            dp_hot_dt_pa_k,
+            p_cold_pa,
+            dp_cold_dt_pa_k,
+            &self.air,
+        );
+        EnclosureFlux {
+            q_convective_w_m2: t.q_convective_w_m2,
+            q_evaporative_w_m2: t.q_evaporative_w_m2,
+            dq_convective_dt_hot: t.dq_convective_dt_hot,
+            dq_convective_dt_cold: t.dq_convective_dt_cold,
+            dq_evaporative_dt_hot: t.dq_evaporative_dt_hot,
+            dq_evaporative_dt_cold: t.dq_evaporative_dt_cold,
+        }
     }
 }
 

@@ -8,6 +8,7 @@ use nalgebra::DMatrix;
 use proptest::prelude::*;
 use stillbench::network::*;
 use stillbench::physics::constants::STEFAN_BOLTZMANN_W_M2_K4;
+use stillbench::physics::heat_transfer::{EnclosureAir, InternalCorrelation};
 
 // ---------------------------------------------------------------------------------------
 // Helpers
@@ -20,39 +21,25 @@ fn converged(o: StepOutcome) -> u32 {
     }
 }
 
-/// Dunkle's internal convection with a smoothed cube root, for tests only.
-///
-/// h = 0.884·(X² + X0²)^(1/6), X = ΔT + (p_w − p_g)·T_w/(268.9e3 − p_w) (Dunkle 1961 as in
-/// REFERENCES.md §1, with T_w in kelvin for Dunkle's (t_w + 273)); X0 = 0.5 K smooths the
-/// infinite slope of the cube root at X = 0 and keeps h > 0 when the cover is warmer.
-/// q_c = h·ΔT; q_e = 16.273e−3·h·Δp computed from Δp directly. Meaningful only while
-/// 268.9 kPa − p_w stays well above zero, i.e. brine below ≈ 120 °C (DESIGN.md, numerics of
-/// the internal transfer).
-#[derive(Debug)]
-struct SmoothedDunkle;
-
-impl EnclosureModel for SmoothedDunkle {
-    fn transfer(&self, tw: f64, tg: f64, pw: f64, dpw: f64, pg: f64, dpg: f64) -> EnclosureFlux {
-        const X0: f64 = 0.5;
-        let d = 268.9e3 - pw;
-        let dtemp = tw - tg;
-        let x = dtemp + (pw - pg) * tw / d;
-        let dx_dtw = 1.0 + (dpw * tw + (pw - pg)) / d + (pw - pg) * tw * dpw / (d * d);
-        let dx_dtg = -1.0 - dpg * tw / d;
-        let s = x * x + X0 * X0;
-        let h = 0.884 * s.powf(1.0 / 6.0);
-        let dh_dx = 0.884 / 3.0 * x * s.powf(-5.0 / 6.0);
-        let (dh_dtw, dh_dtg) = (dh_dx * dx_dtw, dh_dx * dx_dtg);
-        let k = DUNKLE_LEWIS_FACTOR_K_PA;
-        EnclosureFlux {
-            q_convective_w_m2: h * dtemp,
-            q_evaporative_w_m2: k * h * (pw - pg),
-            dq_convective_dt_hot: dh_dtw * dtemp + h,
-            dq_convective_dt_cold: dh_dtg * dtemp - h,
-            dq_evaporative_dt_hot: k * (dh_dtw * (pw - pg) + h * dpw),
-            dq_evaporative_dt_cold: k * (dh_dtg * (pw - pg) - h * dpg),
-        }
+/// Air inside a still near 320 K: k = 0.0278 W/mK, ν = 17.9e-6 m²/s, Pr = 0.705
+/// (Incropera & DeWitt, 6th ed., Table A.4, interpolated between 300 and 350 K, from memory),
+/// 1 atm, with the gap `gap_m`.
+fn still_air(gap_m: f64) -> EnclosureAir {
+    EnclosureAir {
+        conductivity_w_m_k: 0.0278,
+        kinematic_viscosity_m2_s: 17.9e-6,
+        prandtl: 0.705,
+        total_pressure_pa: 101_325.0,
+        characteristic_length_m: gap_m,
     }
+}
+
+/// Dunkle's relations through the shared correlation (physics::heat_transfer).
+fn dunkle() -> Arc<dyn EnclosureModel> {
+    Arc::new(CorrelationEnclosure {
+        correlation: InternalCorrelation::Dunkle,
+        air: still_air(0.3),
+    })
 }
 
 /// A basin-like network: cover, brine (water node), liner; ambient air, sky and ground.
@@ -72,7 +59,7 @@ struct Basin {
 /// (REFERENCES.md §1: 100–300 W/m²K); base U = 0.62 W/m²K (REFERENCES.md §2 [C]);
 /// internal radiation 0.82 (ε_eff for 0.9/0.9, REFERENCES.md §1).
 fn basin(collected: f64, leaked: f64) -> Basin {
-    basin_with(Arc::new(SmoothedDunkle), collected, leaked)
+    basin_with(dunkle(), collected, leaked)
 }
 
 fn basin_with(model: Arc<dyn EnclosureModel>, collected: f64, leaked: f64) -> Basin {
@@ -377,7 +364,8 @@ struct AllKinds {
 }
 
 /// A network with every link kind: fixed and temperature-dependent conductances, radiation,
-/// and two enclosures (linear and smoothed-Dunkle models), one from a fed and drained wick.
+/// and two enclosures (Dunkle; the inclined narrow enclosure of a multi-effect stage), one
+/// from a fed and drained wick.
 fn all_kinds() -> AllKinds {
     let mut b = NetworkBuilder::new();
     let air = b.boundary("air");
@@ -390,15 +378,7 @@ fn all_kinds() -> AllKinds {
     let plate = b.node("plate", 800.0);
     b.conductance("cover-air", cover, air, 9.0, LossPath::CoverToAir);
     b.radiation("cover-sky", cover, sky, 0.85, LossPath::CoverToSky);
-    b.enclosure(
-        "brine-cover",
-        brine,
-        cover,
-        1.0,
-        Arc::new(SmoothedDunkle),
-        0.8,
-        0.05,
-    );
+    b.enclosure("brine-cover", brine, cover, 1.0, dunkle(), 0.8, 0.05);
     b.radiation("brine-cover rad", brine, cover, 0.82, LossPath::Internal);
     b.conductance("liner-brine", liner, brine, 150.0, LossPath::Internal);
     b.variable_conductance(
@@ -417,9 +397,9 @@ fn all_kinds() -> AllKinds {
         wick,
         plate,
         0.5,
-        Arc::new(FixedCoefficientEnclosure {
-            h_convective_w_m2_k: 3.0,
-            lewis_factor_k_pa: DUNKLE_LEWIS_FACTOR_K_PA,
+        Arc::new(CorrelationEnclosure {
+            correlation: InternalCorrelation::InclinedEnclosure { tilt_rad: 0.5 },
+            air: still_air(0.005),
         }),
         0.7,
         0.1,
@@ -607,15 +587,7 @@ fn fed_and_drained_wick_balance_closes() {
     let back = b.node("backing", 1_500.0);
     b.conductance("cover-air", cover, air, 9.0, LossPath::CoverToAir);
     b.radiation("cover-sky", cover, sky, 0.85, LossPath::CoverToSky);
-    b.enclosure(
-        "wick-cover",
-        wick,
-        cover,
-        1.0,
-        Arc::new(SmoothedDunkle),
-        0.85,
-        0.03,
-    );
+    b.enclosure("wick-cover", wick, cover, 1.0, dunkle(), 0.85, 0.03);
     b.radiation("wick-cover rad", wick, cover, 0.82, LossPath::Internal);
     b.conductance("wick-backing", wick, back, 60.0, LossPath::Internal);
     b.conductance("backing-air", back, air, 0.8, LossPath::Base);
