@@ -15,6 +15,7 @@ pub mod design;
 pub mod error;
 pub mod network;
 pub mod physics;
+pub mod stills;
 
 pub use error::{Error, ExitCode};
 

@@ -27,9 +27,10 @@ pub use library::{
 };
 pub use schema::{
     BasinKind, Climate, Columns, DAYS_IN_MONTH, DEFAULT_LITRES_PER_PERSON_DAY, DEFAULT_RH_PERCENT,
-    Demand, Design, DoubleSlope, GapFill, HorizonPoint, Humidity, InternalCorrelation, KIND_NAMES,
-    Layer, MonthlyClimate, MultiEffect, Period, Project, STEPPED_MIN_CLEARANCE_MM, SingleSlope,
-    Sink, Site, Stepped, Variant, VariantKind, WeatherFile, WeatherFormat, Wick,
+    DEFAULT_SOILING_TRANSMITTANCE, Demand, Design, DoubleSlope, GapFill, HorizonPoint, Humidity,
+    InternalCorrelation, KIND_NAMES, Layer, LossSwitches, MonthlyClimate, MultiEffect, Period,
+    Project, STEPPED_MIN_CLEARANCE_MM, SingleSlope, Sink, Site, Stepped, Variant, VariantKind,
+    WeatherFile, WeatherFormat, Wick,
 };
 pub use summary::write_summary;
 

@@ -470,6 +470,97 @@ pub struct SingleSlope {
     /// Internal transfer correlation; default `dunkle`.
     #[serde(default)]
     pub internal_correlation: InternalCorrelation,
+    /// Share of sunlight a dusty cover still passes [-], (0, 1]; default 0.95
+    /// ([`DEFAULT_SOILING_TRANSMITTANCE`]).
+    #[serde(default = "default_soiling")]
+    pub soiling_transmittance: f64,
+    /// Which optional loss paths the model includes; default all of them.
+    #[serde(default)]
+    pub losses: LossSwitches,
+}
+
+/// Share of sunlight a cover passes with its usual dust [-]: 0.95 for a cover wiped every
+/// few days. Common practice, no source.
+pub const DEFAULT_SOILING_TRANSMITTANCE: f64 = 0.95;
+
+fn default_soiling() -> f64 {
+    DEFAULT_SOILING_TRANSMITTANCE
+}
+
+fn yes() -> bool {
+    true
+}
+
+/// `losses = { … }` under a single-slope variant: switches for every optional loss path.
+///
+/// All default to `true` (the path is modelled). `ideal = true` turns every one of them off,
+/// whatever the others say, giving the ideal three-node still (cover, brine, liner; fixed
+/// normal-incidence cover transmittance; full collection) used to compare with the textbook
+/// figure.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct LossSwitches {
+    /// Turn every optional loss path off.
+    #[serde(default)]
+    pub ideal: bool,
+    /// Cover reflection rising with the incidence angle (off: the normal-incidence value
+    /// for beam and diffuse alike).
+    #[serde(default = "yes")]
+    pub angle_reflection: bool,
+    /// Dust on the cover (`soiling_transmittance`).
+    #[serde(default = "yes")]
+    pub soiling: bool,
+    /// Condensate film or drops on the cover's underside.
+    #[serde(default = "yes")]
+    pub condensate_film: bool,
+    /// Walls shading the brine and absorbing light at low sun.
+    #[serde(default = "yes")]
+    pub wall_shading: bool,
+    /// Heat lost through the side and back walls.
+    #[serde(default = "yes")]
+    pub side_losses: bool,
+    /// Condensate dripping back into the basin (`collection_efficiency`).
+    #[serde(default = "yes")]
+    pub drip_back: bool,
+    /// Vapour leaking through gaps (`vapour_leakage`).
+    #[serde(default = "yes")]
+    pub leakage: bool,
+}
+
+impl Default for LossSwitches {
+    fn default() -> Self {
+        LossSwitches {
+            ideal: false,
+            angle_reflection: true,
+            soiling: true,
+            condensate_film: true,
+            wall_shading: true,
+            side_losses: true,
+            drip_back: true,
+            leakage: true,
+        }
+    }
+}
+
+impl LossSwitches {
+    /// Every optional loss path off.
+    pub fn ideal() -> Self {
+        LossSwitches {
+            ideal: true,
+            angle_reflection: false,
+            soiling: false,
+            condensate_film: false,
+            wall_shading: false,
+            side_losses: false,
+            drip_back: false,
+            leakage: false,
+        }
+    }
+
+    /// The switches in force: all off when `ideal` is set, otherwise as given.
+    pub fn effective(&self) -> Self {
+        if self.ideal { Self::ideal() } else { *self }
+    }
 }
 
 impl SingleSlope {

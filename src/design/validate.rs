@@ -651,6 +651,14 @@ pub(crate) fn variants(r: &mut Reader<'_>, vs: &[Variant], lib: Option<&Library>
                 layers(r, &format!("{p}.base_insulation"), &k.base_insulation, lib);
                 layers(r, &format!("{p}.side_insulation"), &k.side_insulation, lib);
                 losses(r, &p, k.collection_efficiency, Some(k.vapour_leakage));
+                range(
+                    r,
+                    &format!("{p}.soiling_transmittance"),
+                    k.soiling_transmittance,
+                    B::Ex(0.0),
+                    B::In(1.0),
+                    "",
+                );
             }
             VariantKind::DoubleSlope(k) => {
                 tilt(r, &format!("{p}.cover_tilt_deg"), k.cover_tilt_deg);

@@ -1,0 +1,707 @@
+//! Still variants on the shared thermal network, and the result record every variant
+//! returns.
+//!
+//! Each variant is a small builder ([`single_slope::SingleSlopeStill`]) that turns its design
+//! into a [`crate::network::Network`] and, for each weather record, into that network's
+//! [`crate::network::Inputs`] (boundary temperatures, absorbed sunlight, wind-dependent
+//! conductances, feed). It implements [`StillModel`]; the driver in this module
+//! ([`simulate_variant`]) runs any [`StillModel`] over the site's weather with the network's
+//! one solver, books the energy balance day by day and fills a [`VariantResult`].
+//!
+//! Runs: with a monthly climate, each month's average day is repeated until the daily cycle
+//! repeats (daily yield within [`RunOptions::periodic_yield_tol`] and the node temperatures
+//! at midnight within [`RunOptions::periodic_temperature_tol_k`]); with a weather file, the
+//! records run once in order. Each simulated day starts a fresh energy balance, and the
+//! brine starts each day at the feed salinity (until flushing is modelled this stands for a
+//! daily flush; salt changes no stored energy).
+
+pub mod single_slope;
+pub mod sunlight;
+pub mod weather;
+
+use serde::Serialize;
+
+use crate::climate::{HourlyWeather, Plane, SkyModel};
+use crate::design::{LoadedDesign, Variant, VariantKind};
+use crate::error::Error;
+use crate::network::{
+    EnergyBalance, Inputs, LossPath, Network, NetworkError, NodeId, Simulation, SolverSettings,
+    State, StepControl,
+};
+use crate::physics::constants::ZERO_CELSIUS_K;
+use crate::physics::irradiance::PlaneIrradiance;
+use crate::physics::water;
+pub use single_slope::SingleSlopeStill;
+pub use sunlight::SunlightSplit;
+pub use weather::{SiteWeather, site_weather};
+
+/// Largest energy residual accepted, as a fraction of the absorbed sunlight (DESIGN.md:
+/// 0.1 %).
+pub const MAX_RESIDUAL_FRACTION: f64 = 1e-3;
+
+/// What a variant needs to know about one weather record.
+#[derive(Debug, Clone, Copy)]
+pub struct HourContext<'a> {
+    /// The weather record.
+    pub weather: &'a HourlyWeather,
+    /// Irradiance on the (main) cover plane, per m² of cover.
+    pub poa: &'a PlaneIrradiance,
+    /// Ground temperature \[K\] (the month's mean air temperature).
+    pub ground_k: f64,
+    /// Whether the dew point comes from data.
+    pub dew_point_known: bool,
+    /// Feed salinity [g kg⁻¹].
+    pub feed_salinity_g_kg: f64,
+}
+
+/// A still variant as the driver sees it.
+pub trait StillModel {
+    /// The network.
+    fn network(&self) -> &Network;
+    /// The water node whose evaporation makes the distillate.
+    fn brine_node(&self) -> NodeId;
+    /// The (main) cover node.
+    fn cover_node(&self) -> NodeId;
+    /// The basin liner or absorber node, if any.
+    fn liner_node(&self) -> Option<NodeId>;
+    /// The inner-walls node, if any.
+    fn walls_node(&self) -> Option<NodeId>;
+    /// Footprint (plan area) \[m²\].
+    fn footprint_m2(&self) -> f64;
+    /// Cover area \[m²\].
+    fn aperture_m2(&self) -> f64;
+    /// Evaporating area \[m²\].
+    fn evaporating_m2(&self) -> f64;
+    /// Brine mass at the set depth \[kg\].
+    fn set_brine_kg(&self) -> f64;
+    /// Kind-specific details for the result.
+    fn details(&self) -> KindDetails;
+    /// The state at the start of a run: every node at `t_k` \[K\], brine at its set mass and
+    /// `salinity_g_kg` [g kg⁻¹].
+    fn initial_state(&self, t_k: f64, salinity_g_kg: f64) -> Result<State, NetworkError>;
+    /// Fill `inputs` for one weather record (computed once per record, not per iteration)
+    /// and return where its sunlight went.
+    fn hour_inputs(
+        &self,
+        ctx: &HourContext<'_>,
+        state: &State,
+        inputs: &mut Inputs,
+    ) -> Result<SunlightSplit, NetworkError>;
+}
+
+/// Kind-specific details carried in a [`VariantResult`].
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum KindDetails {
+    /// A single-slope basin still.
+    SingleSlope {
+        /// Front wall height \[mm\].
+        front_wall_mm: f64,
+        /// Back wall height, derived \[mm\].
+        back_wall_mm: f64,
+        /// Cover tilt \[deg\].
+        cover_tilt_deg: f64,
+        /// Set brine depth \[mm\].
+        brine_depth_mm: f64,
+        /// Base overall coefficient [W m⁻² K⁻¹].
+        base_u_w_m2_k: f64,
+        /// Side wall coefficient without the outside film [W m⁻² K⁻¹].
+        side_u_inner_w_m2_k: f64,
+        /// Inner wall area above the brine modelled \[m²\] (0 when walls are left out).
+        wall_area_m2: f64,
+        /// Whether every optional loss path was off.
+        ideal: bool,
+    },
+}
+
+/// Energy booked over a month's (last) simulated day, per day [kWh].
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize)]
+pub struct EnergySummary {
+    /// Sunlight on the cover.
+    pub incident_kwh: f64,
+    /// Sunlight entering through the cover.
+    pub entering_kwh: f64,
+    /// Sunlight absorbed by the still's parts (the network's sources).
+    pub absorbed_kwh: f64,
+    /// Sunlight reflected back out or lost to dust and drops.
+    pub reflected_kwh: f64,
+    /// Convection (and ground radiation) from the cover.
+    pub cover_to_air_kwh: f64,
+    /// Radiation from the cover to the sky.
+    pub cover_to_sky_kwh: f64,
+    /// Through the base.
+    pub base_kwh: f64,
+    /// Through the sides.
+    pub sides_kwh: f64,
+    /// Change of stored heat.
+    pub stored_kwh: f64,
+    /// Enthalpy brought in with the top-up feed.
+    pub feed_in_kwh: f64,
+    /// Enthalpy leaving with the distillate.
+    pub distillate_out_kwh: f64,
+    /// Enthalpy leaving with leaked vapour.
+    pub leaked_vapour_kwh: f64,
+    /// Distillate [kg].
+    pub distillate_kg: f64,
+    /// Water evaporated [kg].
+    pub evaporated_kg: f64,
+    /// Residual as a fraction of the absorbed sunlight [-].
+    pub residual_fraction: f64,
+}
+
+const J_PER_KWH: f64 = 3.6e6;
+
+impl EnergySummary {
+    fn from_balance(b: &EnergyBalance, incident_j: f64, entering_j: f64) -> Self {
+        EnergySummary {
+            incident_kwh: incident_j / J_PER_KWH,
+            entering_kwh: entering_j / J_PER_KWH,
+            absorbed_kwh: b.absorbed_sunlight_j / J_PER_KWH,
+            reflected_kwh: (incident_j - b.absorbed_sunlight_j) / J_PER_KWH,
+            cover_to_air_kwh: b.loss_j(LossPath::CoverToAir) / J_PER_KWH,
+            cover_to_sky_kwh: b.loss_j(LossPath::CoverToSky) / J_PER_KWH,
+            base_kwh: b.loss_j(LossPath::Base) / J_PER_KWH,
+            sides_kwh: b.loss_j(LossPath::Sides) / J_PER_KWH,
+            stored_kwh: b.stored_j / J_PER_KWH,
+            feed_in_kwh: b.feed_in_j / J_PER_KWH,
+            distillate_out_kwh: b.distillate_out_j / J_PER_KWH,
+            leaked_vapour_kwh: b.leaked_vapour_out_j / J_PER_KWH,
+            distillate_kg: b.distillate_kg,
+            evaporated_kg: b.evaporated_kg,
+            residual_fraction: b.residual_fraction(),
+        }
+    }
+}
+
+/// One hour of a run (`--hourly`).
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct HourRecord {
+    /// Month 1…12.
+    pub month: u32,
+    /// Day of the year.
+    pub day_of_year: u32,
+    /// Solar time at the middle of the record \[h\].
+    pub solar_hour_h: f64,
+    /// Air temperature [°C].
+    pub t_air_c: f64,
+    /// Cover temperature at the end of the hour [°C].
+    pub t_cover_c: f64,
+    /// Brine temperature [°C].
+    pub t_brine_c: f64,
+    /// Liner temperature [°C] (cover's if none).
+    pub t_liner_c: f64,
+    /// Sunlight entering through the cover, per m² footprint [W m⁻²].
+    pub entering_w_m2: f64,
+    /// Sunlight absorbed in the still [W].
+    pub absorbed_w: f64,
+    /// Cover to air [W].
+    pub cover_to_air_w: f64,
+    /// Cover to sky [W].
+    pub cover_to_sky_w: f64,
+    /// Base [W].
+    pub base_w: f64,
+    /// Sides [W].
+    pub sides_w: f64,
+    /// Distillate over the hour [L] (1 kg = 1 L).
+    pub distillate_l: f64,
+}
+
+/// The worst month.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct WorstMonth {
+    /// Month 1…12.
+    pub month: u32,
+    /// Its yield [L m⁻² day⁻¹].
+    pub l_m2_day: f64,
+}
+
+/// One month's result, per (average or mean) day.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct MonthResult {
+    /// Month 1…12.
+    pub month: u32,
+    /// Distillate per m² of footprint [L m⁻² day⁻¹].
+    pub l_m2_day: f64,
+    /// Distillate of the whole still [L day⁻¹].
+    pub l_day: f64,
+    /// Global horizontal irradiation [kWh m⁻² day⁻¹].
+    pub insolation_kwh_m2_day: f64,
+    /// Sunlight entering through the cover per m² footprint [kWh m⁻² day⁻¹].
+    pub cover_insolation_kwh_m2_day: f64,
+    /// Plane-of-array irradiation on the cover per m² of cover [kWh m⁻² day⁻¹].
+    pub poa_kwh_m2_day: f64,
+    /// Daily efficiency: distillate × latent heat ÷ sunlight entering through the cover [-].
+    pub efficiency: f64,
+    /// Single-effect ceiling: entering sunlight ÷ latent heat [L m⁻² day⁻¹].
+    pub ceiling_l_m2_day: f64,
+    /// Share of the distillate made while no sunlight entered [-].
+    pub night_share: f64,
+    /// Highest brine temperature [°C].
+    pub max_brine_c: f64,
+    /// Highest cover temperature [°C].
+    pub max_cover_c: f64,
+    /// Days simulated until the cycle repeated (0 for a weather file).
+    pub days_to_periodic: u32,
+    /// Energy booked over the day.
+    pub energy: EnergySummary,
+}
+
+/// The result every variant returns.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct VariantResult {
+    /// Variant name.
+    pub name: String,
+    /// Kind name as in design files.
+    pub kind: String,
+    /// Footprint \[m²\].
+    pub footprint_m2: f64,
+    /// Cover (aperture) area \[m²\].
+    pub aperture_m2: f64,
+    /// Evaporating area \[m²\].
+    pub evaporating_m2: f64,
+    /// January to December.
+    pub months: Vec<MonthResult>,
+    /// Annual distillate [L].
+    pub annual_l: f64,
+    /// Annual distillate per m² footprint [L m⁻²].
+    pub annual_l_m2: f64,
+    /// Mean daily yield over the year [L m⁻² day⁻¹].
+    pub mean_l_m2_day: f64,
+    /// The month with the lowest daily yield.
+    pub worst_month: WorstMonth,
+    /// Largest |residual| fraction over the months [-].
+    pub energy_residual: f64,
+    /// Hour-by-hour records (the last simulated day of each month, or every record of a
+    /// weather file), when asked for.
+    pub hourly: Option<Vec<HourRecord>>,
+    /// Kind-specific details.
+    pub details: KindDetails,
+}
+
+/// How to run.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct RunOptions {
+    /// Adaptive time-step control (its `max_change_k` is the accuracy setting).
+    pub control: StepControl,
+    /// Newton settings.
+    pub settings: SolverSettings,
+    /// Keep hour-by-hour records.
+    pub hourly: bool,
+    /// Most average days simulated per month before giving up.
+    pub max_days: u32,
+    /// Daily yield tolerance of the periodic test [-].
+    pub periodic_yield_tol: f64,
+    /// Midnight temperature tolerance of the periodic test \[K\].
+    pub periodic_temperature_tol_k: f64,
+}
+
+impl Default for RunOptions {
+    /// The network's default step control (0.5 K per step, ≤ 900 s), periodic within 0.1 %
+    /// and 0.05 K, at most 40 days.
+    fn default() -> Self {
+        RunOptions {
+            control: StepControl::default(),
+            settings: SolverSettings::default(),
+            hourly: false,
+            max_days: 40,
+            periodic_yield_tol: 1e-3,
+            periodic_temperature_tol_k: 0.05,
+        }
+    }
+}
+
+/// Whether a kind has a model yet.
+pub fn is_modelled(kind: &VariantKind) -> bool {
+    matches!(kind, VariantKind::SingleSlope(_))
+}
+
+/// Build the model of a variant, or `None` for a kind not modelled yet.
+pub fn build_model(
+    loaded: &LoadedDesign,
+    variant: &Variant,
+    weather: &SiteWeather,
+) -> Result<Option<Box<dyn StillModel>>, Error> {
+    match &variant.kind {
+        VariantKind::SingleSlope(k) => Ok(Some(Box::new(SingleSlopeStill::new(
+            variant,
+            k,
+            &loaded.library,
+            weather.pressure_pa,
+        )?))),
+        _ => Ok(None),
+    }
+}
+
+/// Simulate one variant of a loaded design over the site's weather.
+///
+/// Errors: [`Error::Model`] for a kind not modelled yet, a failed step, a non-periodic month,
+/// an energy residual over [`MAX_RESIDUAL_FRACTION`] or a non-finite or negative output.
+pub fn simulate_variant(
+    loaded: &LoadedDesign,
+    variant: &Variant,
+    weather: &SiteWeather,
+    opts: &RunOptions,
+) -> Result<VariantResult, Error> {
+    let model = build_model(loaded, variant, weather)?.ok_or_else(|| Error::Model {
+        variant: variant.name.clone(),
+        at: String::new(),
+        reason: format!("the {} kind is not modelled yet", variant.kind.name()),
+    })?;
+    let plane = Plane::from_degrees(variant.cover_tilt_deg(), variant.cover_azimuth_deg);
+    run_model(
+        model.as_ref(),
+        &variant.name,
+        variant.kind.name(),
+        plane,
+        weather,
+        opts,
+    )
+}
+
+/// Per-day totals.
+#[derive(Debug, Clone, Default)]
+struct DayTotals {
+    incident_j: f64,
+    entering_j: f64,
+    ghi_j_m2: f64,
+    poa_j_m2: f64,
+    distillate_kg: f64,
+    distillate_latent_j: f64,
+    night_kg: f64,
+    max_brine_k: f64,
+    max_cover_k: f64,
+    hours: Vec<HourRecord>,
+    balance: Option<EnergyBalance>,
+}
+
+fn model_error(name: &str, month: u32, hour: Option<f64>, reason: String) -> Error {
+    let at = match hour {
+        Some(h) => format!(", month {month}, hour {h:.1}"),
+        None => format!(", month {month}"),
+    };
+    Error::Model {
+        variant: name.to_owned(),
+        at,
+        reason,
+    }
+}
+
+/// Run one day of records from `state`; returns the day's totals and the end state.
+#[allow(clippy::too_many_arguments)]
+fn run_day(
+    model: &dyn StillModel,
+    name: &str,
+    records: &[HourlyWeather],
+    poa: &[PlaneIrradiance],
+    weather: &SiteWeather,
+    state: State,
+    inputs: &mut Inputs,
+    opts: &RunOptions,
+) -> Result<(DayTotals, State), Error> {
+    let net = model.network();
+    let brine = model.brine_node();
+    let cover = model.cover_node();
+    let mut state = state;
+    let month = records.first().map_or(1, |r| r.month);
+    let m_brine = state.brine_kg(brine).unwrap_or(0.0);
+    state
+        .set_brine(net, brine, m_brine, weather.feed_salinity_g_kg)
+        .map_err(|e| model_error(name, month, None, e.to_string()))?;
+    let mut sim = Simulation::new(net, state, opts.settings, opts.control)
+        .map_err(|e| model_error(name, month, None, e.to_string()))?;
+    let mut t = DayTotals::default();
+    for (rec, p) in records.iter().zip(poa) {
+        let m = (rec.month.clamp(1, 12) - 1) as usize;
+        let ctx = HourContext {
+            weather: rec,
+            poa: p,
+            ground_k: weather.month_mean_air_k[m],
+            dew_point_known: weather.dew_point_known,
+            feed_salinity_g_kg: weather.feed_salinity_g_kg,
+        };
+        let hour_err =
+            |reason: String| model_error(name, rec.month, Some(rec.hour_mid_solar_h), reason);
+        let split = model
+            .hour_inputs(&ctx, sim.state(), inputs)
+            .map_err(|e| hour_err(e.to_string()))?;
+        let before = sim.balance().clone();
+        let dt_s = rec.period_h * 3600.0;
+        sim.advance(inputs, dt_s)
+            .map_err(|e| hour_err(e.to_string()))?;
+        let after = sim.balance();
+        let d_kg = after.distillate_kg - before.distillate_kg;
+        let s = sim.state();
+        let t_brine = s.temperature_k(brine).unwrap_or(f64::NAN);
+        let t_cover = s.temperature_k(cover).unwrap_or(f64::NAN);
+        if !(d_kg.is_finite() && t_brine.is_finite() && t_cover.is_finite()) || d_kg < -1e-9 {
+            return Err(hour_err(format!(
+                "unphysical output (distillate {d_kg} kg, brine {t_brine} K, cover {t_cover} K)"
+            )));
+        }
+        t.incident_j += split.incident_w * dt_s;
+        t.entering_j += split.entering_w * dt_s;
+        t.ghi_j_m2 += rec.ghi_w_m2.max(0.0) * dt_s;
+        t.poa_j_m2 += p.total_w_m2() * dt_s;
+        t.distillate_kg += d_kg;
+        t.distillate_latent_j += d_kg * water::latent_heat_j_kg(t_brine);
+        if split.entering_w <= 0.0 {
+            t.night_kg += d_kg;
+        }
+        t.max_brine_k = t.max_brine_k.max(t_brine);
+        t.max_cover_k = t.max_cover_k.max(t_cover);
+        if opts.hourly {
+            let path = |p: LossPath| (after.loss_j(p) - before.loss_j(p)) / dt_s;
+            let t_liner = model
+                .liner_node()
+                .and_then(|n| s.temperature_k(n))
+                .unwrap_or(t_cover);
+            t.hours.push(HourRecord {
+                month: rec.month,
+                day_of_year: rec.day_of_year,
+                solar_hour_h: rec.hour_mid_solar_h,
+                t_air_c: rec.t_air_k - ZERO_CELSIUS_K,
+                t_cover_c: t_cover - ZERO_CELSIUS_K,
+                t_brine_c: t_brine - ZERO_CELSIUS_K,
+                t_liner_c: t_liner - ZERO_CELSIUS_K,
+                entering_w_m2: split.entering_w / model.footprint_m2(),
+                absorbed_w: (after.absorbed_sunlight_j - before.absorbed_sunlight_j) / dt_s,
+                cover_to_air_w: path(LossPath::CoverToAir),
+                cover_to_sky_w: path(LossPath::CoverToSky),
+                base_w: path(LossPath::Base),
+                sides_w: path(LossPath::Sides),
+                distillate_l: d_kg,
+            });
+        }
+    }
+    let balance = sim.balance().clone();
+    if let Err(e) = balance.check(MAX_RESIDUAL_FRACTION) {
+        return Err(model_error(name, month, None, e.to_string()));
+    }
+    t.balance = Some(balance);
+    Ok((t, sim.state().clone()))
+}
+
+fn month_result(
+    model: &dyn StillModel,
+    month: u32,
+    days: &[DayTotals],
+    days_to_periodic: u32,
+) -> MonthResult {
+    let n = days.len().max(1) as f64;
+    let fp = model.footprint_m2();
+    let sum = |f: &dyn Fn(&DayTotals) -> f64| days.iter().map(f).sum::<f64>() / n;
+    let distillate = sum(&|d| d.distillate_kg);
+    let latent = sum(&|d| d.distillate_latent_j);
+    let entering = sum(&|d| d.entering_j);
+    let night = sum(&|d| d.night_kg);
+    let hfg = if distillate > 0.0 {
+        latent / distillate
+    } else {
+        water::latent_heat_j_kg(ZERO_CELSIUS_K + 40.0)
+    };
+    let mut energy = EnergySummary::default();
+    if let Some(b) = days.last().and_then(|d| d.balance.as_ref()) {
+        let last = days
+            .last()
+            .map_or((0.0, 0.0), |d| (d.incident_j, d.entering_j));
+        energy = EnergySummary::from_balance(b, last.0, last.1);
+    }
+    MonthResult {
+        month,
+        l_m2_day: distillate / fp,
+        l_day: distillate,
+        insolation_kwh_m2_day: sum(&|d| d.ghi_j_m2) / J_PER_KWH,
+        cover_insolation_kwh_m2_day: entering / fp / J_PER_KWH,
+        poa_kwh_m2_day: sum(&|d| d.poa_j_m2) / J_PER_KWH,
+        efficiency: if entering > 0.0 {
+            latent / entering
+        } else {
+            0.0
+        },
+        ceiling_l_m2_day: entering / hfg / fp,
+        night_share: if distillate > 0.0 {
+            night / distillate
+        } else {
+            0.0
+        },
+        max_brine_c: days.iter().map(|d| d.max_brine_k).fold(f64::MIN, f64::max) - ZERO_CELSIUS_K,
+        max_cover_c: days.iter().map(|d| d.max_cover_k).fold(f64::MIN, f64::max) - ZERO_CELSIUS_K,
+        days_to_periodic,
+        energy,
+    }
+}
+
+/// Run a built model over the site's weather on the cover plane `plane`.
+///
+/// The plane-of-array irradiance (Hay–Davies) of every record is computed once before the
+/// run.
+pub fn run_model(
+    model: &dyn StillModel,
+    name: &str,
+    kind: &str,
+    plane: Plane,
+    weather: &SiteWeather,
+    opts: &RunOptions,
+) -> Result<VariantResult, Error> {
+    let net = model.network();
+    let poa = weather.series.plane_series(plane, SkyModel::HayDavies);
+    let hours = &weather.series.hours;
+    let mut inputs = net
+        .inputs(weather.month_mean_air_k[0])
+        .map_err(|e| model_error(name, 1, None, e.to_string()))?;
+    let mut months = Vec::with_capacity(12);
+    let mut hourly = Vec::new();
+    if weather.average_days {
+        for m in 1..=12u32 {
+            let idx: Vec<usize> = (0..hours.len()).filter(|&i| hours[i].month == m).collect();
+            let (Some(&a), Some(&b)) = (idx.first(), idx.last()) else {
+                return Err(model_error(
+                    name,
+                    m,
+                    None,
+                    "no weather for the month".into(),
+                ));
+            };
+            let recs = &hours[a..=b];
+            let p = &poa[a..=b];
+            let t0 = weather.month_mean_air_k[(m - 1) as usize];
+            let mut state = model
+                .initial_state(t0, weather.feed_salinity_g_kg)
+                .map_err(|e| model_error(name, m, None, e.to_string()))?;
+            let mut prev: Option<(f64, Vec<f64>)> = None;
+            let mut done = None;
+            for day in 1..=opts.max_days {
+                let (totals, end) =
+                    run_day(model, name, recs, p, weather, state, &mut inputs, opts)?;
+                let temps = end.temperatures_k().to_vec();
+                if let Some((y0, t_prev)) = &prev {
+                    let dy = (totals.distillate_kg - y0).abs();
+                    let dt = temps
+                        .iter()
+                        .zip(t_prev)
+                        .map(|(a, b)| (a - b).abs())
+                        .fold(0.0, f64::max);
+                    if dy <= opts.periodic_yield_tol * totals.distillate_kg.max(1e-9)
+                        && dt <= opts.periodic_temperature_tol_k
+                    {
+                        done = Some((totals, day));
+                        break;
+                    }
+                }
+                prev = Some((totals.distillate_kg, temps));
+                state = end;
+            }
+            let Some((totals, days)) = done else {
+                return Err(model_error(
+                    name,
+                    m,
+                    None,
+                    format!(
+                        "the daily cycle did not repeat within {} days",
+                        opts.max_days
+                    ),
+                ));
+            };
+            let mut totals = totals;
+            hourly.append(&mut totals.hours);
+            months.push(month_result(model, m, std::slice::from_ref(&totals), days));
+        }
+    } else {
+        let mut state = model
+            .initial_state(weather.month_mean_air_k[0], weather.feed_salinity_g_kg)
+            .map_err(|e| model_error(name, 1, None, e.to_string()))?;
+        let mut per_month: Vec<Vec<DayTotals>> = vec![Vec::new(); 12];
+        let mut start = 0;
+        while start < hours.len() {
+            let doy = hours[start].day_of_year;
+            let mut end = start;
+            while end < hours.len() && hours[end].day_of_year == doy {
+                end += 1;
+            }
+            let (mut totals, next) = run_day(
+                model,
+                name,
+                &hours[start..end],
+                &poa[start..end],
+                weather,
+                state,
+                &mut inputs,
+                opts,
+            )?;
+            hourly.append(&mut totals.hours);
+            let m = (hours[start].month.clamp(1, 12) - 1) as usize;
+            per_month[m].push(totals);
+            state = next;
+            start = end;
+        }
+        for (i, days) in per_month.iter().enumerate() {
+            months.push(month_result(model, i as u32 + 1, days, 0));
+        }
+    }
+    finish(model, name, kind, months, opts.hourly.then_some(hourly))
+}
+
+fn finish(
+    model: &dyn StillModel,
+    name: &str,
+    kind: &str,
+    months: Vec<MonthResult>,
+    hourly: Option<Vec<HourRecord>>,
+) -> Result<VariantResult, Error> {
+    for mr in &months {
+        let values = [
+            mr.l_m2_day,
+            mr.efficiency,
+            mr.cover_insolation_kwh_m2_day,
+            mr.max_brine_c,
+            mr.max_cover_c,
+        ];
+        if values.iter().any(|v| !v.is_finite()) || mr.l_m2_day < 0.0 {
+            return Err(model_error(
+                name,
+                mr.month,
+                None,
+                "a result is not a finite, non-negative number".into(),
+            ));
+        }
+    }
+    let fp = model.footprint_m2();
+    let days = crate::design::DAYS_IN_MONTH;
+    let annual_l: f64 = months
+        .iter()
+        .zip(days)
+        .map(|(m, d)| m.l_day * f64::from(d))
+        .sum();
+    let worst = months
+        .iter()
+        .min_by(|a, b| a.l_m2_day.total_cmp(&b.l_m2_day))
+        .map_or(
+            WorstMonth {
+                month: 1,
+                l_m2_day: 0.0,
+            },
+            |m| WorstMonth {
+                month: m.month,
+                l_m2_day: m.l_m2_day,
+            },
+        );
+    let residual = months
+        .iter()
+        .map(|m| m.energy.residual_fraction)
+        .fold(0.0, f64::max);
+    Ok(VariantResult {
+        name: name.to_owned(),
+        kind: kind.to_owned(),
+        footprint_m2: fp,
+        aperture_m2: model.aperture_m2(),
+        evaporating_m2: model.evaporating_m2(),
+        annual_l,
+        annual_l_m2: annual_l / fp,
+        mean_l_m2_day: annual_l / fp / 365.0,
+        worst_month: worst,
+        energy_residual: residual,
+        months,
+        hourly,
+        details: model.details(),
+    })
+}
