@@ -5,6 +5,7 @@ use clap::{Parser, Subcommand};
 use stillbench::ExitCode;
 
 mod check;
+mod simulate;
 
 /// Design, simulate and compare solar water stills for one site and the materials a local
 /// workshop can get.
@@ -25,6 +26,9 @@ pub struct Cli {
 enum Command {
     /// Validate a design file and summarise what it describes.
     Check(check::CheckArgs),
+    /// Predict each variant's distillate month by month from a physical heat-and-mass
+    /// model (with no design, the built-in demo).
+    Simulate(simulate::SimulateArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -32,6 +36,7 @@ pub fn main() -> std::process::ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
         Command::Check(args) => check::run(&args),
+        Command::Simulate(args) => simulate::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),

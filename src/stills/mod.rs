@@ -15,6 +15,7 @@
 //! brine starts each day at the feed salinity (until flushing is modelled this stands for a
 //! daily flush; salt changes no stored energy).
 
+pub mod render;
 pub mod single_slope;
 pub mod sunlight;
 pub mod weather;

@@ -1,0 +1,173 @@
+//! `stillbench simulate [DESIGN]`: run every still variant over the site's weather and print
+//! monthly and annual yields.
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use anyhow::Context;
+use stillbench::design::{self, LoadedDesign};
+use stillbench::stills::{self, RunOptions, render};
+
+/// Output formats of `simulate`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum Format {
+    /// A readable monthly table per variant.
+    Text,
+    /// The JSON contract for scripts (see docs/simulate-output.md).
+    Json,
+    /// One row per variant and month.
+    Csv,
+}
+
+/// Arguments of `simulate`.
+#[derive(Debug, clap::Args)]
+#[command(after_help = "Examples:
+  stillbench simulate                                   the built-in demo design
+  stillbench simulate designs/demo-coast.toml           every variant, monthly table
+  stillbench simulate designs/demo-coast.toml --variant glass-basin --hourly
+  stillbench simulate designs/demo-coast.toml --format json --out results.json
+  stillbench simulate designs/demo-coast.toml --format csv --out results.csv --force
+
+How it works: each variant becomes a small thermal network (cover, brine, liner, walls)
+that is stepped through the weather with a heat-and-mass-transfer solver. With monthly
+climate data each month's average day is repeated until the daily cycle repeats; the
+table says how many days that took. Yields are per m² of footprint (plan area).
+Efficiency is distillate × latent heat ÷ sunlight entering through the cover; the
+ceiling is what that sunlight could evaporate at 100 %.
+
+Variant kinds without a model yet are reported on stderr and skipped.")]
+pub struct SimulateArgs {
+    /// The design file (TOML). Without it, the built-in demo design is simulated.
+    pub design: Option<PathBuf>,
+    /// Simulate only the variant with this name.
+    #[arg(long, value_name = "NAME")]
+    pub variant: Option<String>,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+    /// Add each hour's temperatures, heat flows and distillate (the last simulated day of
+    /// each month, or every record of a weather file).
+    #[arg(long)]
+    pub hourly: bool,
+    /// Write to this file instead of standard output (written whole, then renamed into place).
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+    /// Allow --out to replace an existing file.
+    #[arg(long)]
+    pub force: bool,
+}
+
+fn write_atomically(path: &Path, bytes: &[u8], force: bool) -> anyhow::Result<()> {
+    if path.exists() && !force {
+        return Err(stillbench::Error::Io {
+            path: path.display().to_string(),
+            source: std::io::Error::new(
+                std::io::ErrorKind::AlreadyExists,
+                "the file exists; add --force to replace it",
+            ),
+        }
+        .into());
+    }
+    let dir = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let name = path
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "out".to_owned());
+    let tmp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
+    let io_err = |p: &Path, source| stillbench::Error::Io {
+        path: p.display().to_string(),
+        source,
+    };
+    std::fs::write(&tmp, bytes).map_err(|e| io_err(&tmp, e))?;
+    if let Err(e) = std::fs::rename(&tmp, path) {
+        let _ = std::fs::remove_file(&tmp);
+        return Err(io_err(path, e).into());
+    }
+    Ok(())
+}
+
+/// Run `simulate`.
+pub fn run(args: &SimulateArgs) -> anyhow::Result<()> {
+    let loaded: LoadedDesign = match &args.design {
+        Some(path) => design::load_design(path),
+        None => design::load_demo(),
+    }
+    .map_err(stillbench::Error::Design)?;
+    if let Some(out) = &args.out
+        && out.exists()
+        && !args.force
+    {
+        return write_atomically(out, &[], false);
+    }
+    let variants: Vec<_> = loaded
+        .design
+        .variants
+        .iter()
+        .filter(|v| args.variant.as_deref().is_none_or(|n| n == v.name))
+        .collect();
+    if variants.is_empty() {
+        let names: Vec<_> = loaded
+            .design
+            .variants
+            .iter()
+            .map(|v| v.name.as_str())
+            .collect();
+        return Err(
+            stillbench::Error::Design(design::DesignErrors(vec![design::DesignIssue {
+                file: loaded.source.clone(),
+                line_col: None,
+                path: "--variant".to_owned(),
+                message: format!(
+                    "no variant named `{}`; the design has: {}",
+                    args.variant.as_deref().unwrap_or(""),
+                    names.join(", ")
+                ),
+            }]))
+            .into(),
+        );
+    }
+    let weather = stills::site_weather(&loaded)?;
+    let opts = RunOptions {
+        hourly: args.hourly,
+        ..RunOptions::default()
+    };
+    let mut results = Vec::new();
+    for v in variants {
+        if !stills::is_modelled(&v.kind) {
+            eprintln!(
+                "note: variant `{}` ({}) is not modelled yet; skipped",
+                v.name,
+                v.kind.name()
+            );
+            continue;
+        }
+        results.push(stills::simulate_variant(&loaded, v, &weather, &opts)?);
+    }
+    if results.is_empty() {
+        return Err(stillbench::Error::Model {
+            variant: args.variant.clone().unwrap_or_else(|| "(all)".to_owned()),
+            at: String::new(),
+            reason: "no variant of a kind that is modelled yet (single-slope)".to_owned(),
+        }
+        .into());
+    }
+    let title = loaded.design.project.title.as_str();
+    let mut buf = Vec::new();
+    match args.format {
+        Format::Text => render::write_text(&mut buf, title, &results),
+        Format::Json => render::write_json(&mut buf, title, &results),
+        Format::Csv => render::write_csv(&mut buf, &results),
+    }
+    .context("formatting the results")?;
+    match &args.out {
+        Some(path) => write_atomically(path, &buf, args.force),
+        None => {
+            let mut out = std::io::stdout().lock();
+            out.write_all(&buf).context("writing to standard output")?;
+            Ok(())
+        }
+    }
+}
