@@ -706,3 +706,50 @@ fn finish(
         details: model.details(),
     })
 }
+
+/// Simulate a single day of `month` (1…12) from a start with every node at the month's mean
+/// air temperature, without repeating it: a quick check of a built model (property tests,
+/// one day per case). The energy balance is checked as in a full run.
+pub fn run_single_day(
+    model: &dyn StillModel,
+    name: &str,
+    plane: Plane,
+    weather: &SiteWeather,
+    month: u32,
+    opts: &RunOptions,
+) -> Result<MonthResult, Error> {
+    let month = month.clamp(1, 12);
+    let hours = &weather.series.hours;
+    let idx: Vec<usize> = (0..hours.len())
+        .filter(|&i| hours[i].month == month)
+        .collect();
+    let (Some(&a), Some(&b)) = (idx.first(), idx.last()) else {
+        return Err(model_error(
+            name,
+            month,
+            None,
+            "no weather for the month".into(),
+        ));
+    };
+    let first_day = hours[a].day_of_year;
+    let end = (a..=b)
+        .find(|&i| hours[i].day_of_year != first_day)
+        .unwrap_or(b + 1);
+    let recs = &hours[a..end];
+    let poa: Vec<PlaneIrradiance> = recs
+        .iter()
+        .map(|h| {
+            crate::climate::plane_irradiance(h, plane, weather.series.albedo, SkyModel::HayDavies)
+        })
+        .collect();
+    let t0 = weather.month_mean_air_k[(month - 1) as usize];
+    let net = model.network();
+    let state = model
+        .initial_state(t0, weather.feed_salinity_g_kg)
+        .map_err(|e| model_error(name, month, None, e.to_string()))?;
+    let mut inputs = net
+        .inputs(t0)
+        .map_err(|e| model_error(name, month, None, e.to_string()))?;
+    let (totals, _) = run_day(model, name, recs, &poa, weather, state, &mut inputs, opts)?;
+    Ok(month_result(model, month, std::slice::from_ref(&totals), 1))
+}

@@ -6,3 +6,4 @@ mod network;
 mod physics_sun;
 mod physics_transfer;
 mod physics_water;
+mod stills;
