@@ -40,6 +40,11 @@ pub use weather::{SiteWeather, site_weather};
 /// 0.1 %).
 pub const MAX_RESIDUAL_FRACTION: f64 = 1e-3;
 
+/// Accuracy setting of the adaptive step: the largest temperature change of a node with
+/// heat capacity in one step \[K\]. Halving it (and the step limits) changes every demo
+/// month's daily yield by well under 1 % (`tests/it/stills.rs`).
+pub const DEFAULT_MAX_CHANGE_K: f64 = 2.0;
+
 /// What a variant needs to know about one weather record.
 #[derive(Debug, Clone, Copy)]
 pub struct HourContext<'a> {
@@ -297,11 +302,15 @@ pub struct RunOptions {
 }
 
 impl Default for RunOptions {
-    /// The network's default step control (0.5 K per step, ≤ 900 s), periodic within 0.1 %
-    /// and 0.05 K, at most 40 days.
+    /// The network's step control with [`DEFAULT_MAX_CHANGE_K`] per step and steps up to an
+    /// hour, periodic within 0.1 % and 0.05 K, at most 40 days.
     fn default() -> Self {
         RunOptions {
-            control: StepControl::default(),
+            control: StepControl {
+                max_change_k: DEFAULT_MAX_CHANGE_K,
+                max_step_s: 3600.0,
+                ..StepControl::default()
+            },
             settings: SolverSettings::default(),
             hourly: false,
             max_days: 40,
