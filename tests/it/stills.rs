@@ -378,6 +378,23 @@ mod cli {
     }
 
     #[test]
+    fn every_example_design_simulates() {
+        // STYLE.md §5: examples in designs/ are runnable, and a test runs every one.
+        let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("designs");
+        for entry in std::fs::read_dir(dir).unwrap() {
+            let path = entry.unwrap().path();
+            if path.extension().is_some_and(|e| e == "toml") {
+                Command::cargo_bin("stillbench")
+                    .unwrap()
+                    .args(["simulate", "--format", "csv"])
+                    .arg(&path)
+                    .assert()
+                    .success();
+            }
+        }
+    }
+
+    #[test]
     fn unknown_variant_is_bad_input() {
         Command::cargo_bin("stillbench")
             .unwrap()
