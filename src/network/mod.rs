@@ -40,7 +40,7 @@
 //!     StepControl::default()).unwrap();
 //! sim.advance(&inputs, 3600.0).unwrap();
 //! assert!(sim.balance().distillate_kg > 0.0);
-//! sim.balance().check(1e-3).unwrap();
+//! sim.checked_balance().unwrap();
 //! ```
 
 mod balance;
@@ -50,7 +50,7 @@ mod models;
 mod solver;
 mod state;
 
-pub use balance::{BalanceError, EnergyBalance};
+pub use balance::{BalanceError, EnergyBalance, MAX_BALANCE_RESIDUAL_FRACTION};
 pub use build::{
     BoundaryId, End, Link, LinkId, LinkKind, LossPath, Network, NetworkBuilder, NetworkError, Node,
     NodeId,

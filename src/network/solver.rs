@@ -229,6 +229,8 @@ pub struct NodeRecord {
 pub struct StepRecord {
     /// Step length [s] (∞ for a steady-state step).
     pub dt_s: f64,
+    /// Change of stored energy over the step, from the states at its start and end [J].
+    pub stored_change_j: f64,
     /// Per link, in link order.
     pub links: Vec<LinkRecord>,
     /// Per node, in node order.
@@ -240,6 +242,7 @@ impl StepRecord {
     pub fn new(net: &Network) -> Self {
         StepRecord {
             dt_s: 0.0,
+            stored_change_j: 0.0,
             links: vec![LinkRecord::default(); net.links.len()],
             nodes: vec![NodeRecord::default(); net.nodes.len()],
         }
@@ -442,6 +445,7 @@ impl<'n> Solver<'n> {
         };
         let net = self.net;
         let n = net.nodes.len();
+        let energy_before_j = net.stored_energy_j(state);
         if record.links.len() != net.links.len() || record.nodes.len() != n {
             *record = StepRecord::new(net);
         }
@@ -493,6 +497,7 @@ impl<'n> Solver<'n> {
             record.nodes[i].temperature_change_k = self.ws.t[i] - self.consts.t0[i];
         }
         state.t_k.copy_from_slice(&self.ws.t);
+        record.stored_change_j = net.stored_energy_j(state) - energy_before_j;
         StepOutcome::Converged { iterations }
     }
 
