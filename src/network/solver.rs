@@ -1,0 +1,982 @@
+//! The one solver: Newton's method on the node energy balances, implicit Euler in time.
+//!
+//! For node i with fixed capacity C_i and water mass m_i the residual is
+//!
+//! R_i = [C_i (T_i − T_i⁰) + m_i⁰ (h_f(T_i) − h_f(T_i⁰))]/Δt − G_i(T) − S_i
+//!
+//! where G_i is the heat the links bring in *relative to the node's own liquid enthalpy*
+//! (G_i = F_i − h_f(T_i)·ṁ_net,i with F_i the full enthalpy inflow, F_i = Σq + Σṁ_in h_in −
+//! Σṁ_out h_out). With m_i¹ = m_i⁰ + Δt·ṁ_net,i this is exactly the implicit-Euler form of
+//! d(m h + C T)/dt = F, so energy is conserved to the Newton tolerance even while the
+//! brine mass changes. With Δt = ∞ the first term vanishes and the same code gives the
+//! steady state (masses held fixed).
+
+use nalgebra::DMatrix;
+
+use super::build::{End, LinkKind, Network, NetworkError};
+use super::state::{Inputs, State, TEMPERATURE_RANGE_K, salinity};
+use crate::physics::constants::STEFAN_BOLTZMANN_W_M2_K4;
+
+/// Newton settings. Validated by [`Solver::new`].
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SolverSettings {
+    /// Most Newton iterations per step.
+    pub max_iterations: u32,
+    /// Absolute residual tolerance per node [W].
+    pub abs_tolerance_w: f64,
+    /// Relative residual tolerance per node [-], times the sum of the magnitudes of the
+    /// terms in that node's balance (so round-off never blocks convergence).
+    pub rel_tolerance: f64,
+    /// Largest temperature change per Newton iteration [K]; larger updates are scaled down
+    /// (keeps Dunkle's 268.9 kPa − p_w term and the exponentials in range).
+    pub max_newton_change_k: f64,
+    /// Most halvings of the Newton update when the residual does not fall.
+    pub max_halvings: u32,
+}
+
+impl Default for SolverSettings {
+    /// 30 iterations; 1e−6 W + 1e−11 × the node's term sum; 10 K per iteration; 12 halvings.
+    fn default() -> Self {
+        SolverSettings {
+            max_iterations: 30,
+            abs_tolerance_w: 1e-6,
+            rel_tolerance: 1e-11,
+            max_newton_change_k: 10.0,
+            max_halvings: 12,
+        }
+    }
+}
+
+impl SolverSettings {
+    /// Check every setting is in range.
+    pub fn validate(&self) -> Result<(), NetworkError> {
+        let bad = |what, value, allowed| NetworkError::BadValue {
+            item: "solver settings".to_owned(),
+            what,
+            value,
+            allowed,
+        };
+        if !(1..=1000).contains(&self.max_iterations) {
+            return Err(bad(
+                "max_iterations",
+                f64::from(self.max_iterations),
+                "[1, 1000]",
+            ));
+        }
+        if !(self.abs_tolerance_w.is_finite() && self.abs_tolerance_w > 0.0) {
+            return Err(bad("abs_tolerance_w", self.abs_tolerance_w, "> 0 W"));
+        }
+        if !(self.rel_tolerance.is_finite() && (0.0..1e-2).contains(&self.rel_tolerance)) {
+            return Err(bad("rel_tolerance", self.rel_tolerance, "[0, 0.01)"));
+        }
+        if !(self.max_newton_change_k.is_finite() && self.max_newton_change_k > 0.0) {
+            return Err(bad(
+                "max_newton_change_k",
+                self.max_newton_change_k,
+                "> 0 K",
+            ));
+        }
+        if self.max_halvings > 60 {
+            return Err(bad("max_halvings", f64::from(self.max_halvings), "[0, 60]"));
+        }
+        Ok(())
+    }
+}
+
+/// How a step ended. Every step ends in exactly one of these.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum StepOutcome {
+    /// The balances converged after `iterations` Newton iterations (0 if the start was
+    /// already converged); the state and the record are updated.
+    Converged {
+        /// Newton iterations used.
+        iterations: u32,
+    },
+    /// The step converged but crossed an event; the state is unchanged. Retry with a step of
+    /// `time_to_event_s`.
+    Stopped {
+        /// The event.
+        event: StepEvent,
+    },
+    /// The step failed; the state is unchanged.
+    Failed {
+        /// Why.
+        reason: FailReason,
+    },
+}
+
+/// An event that ends a step early.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum StepEvent {
+    /// A water node would run out of water within the step.
+    DryOut {
+        /// The node (see [`Network::nodes`] for its name).
+        node: usize,
+        /// Estimated time from the step's start to the node becoming dry [s].
+        time_to_event_s: f64,
+    },
+}
+
+/// Why a step failed.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum FailReason {
+    /// The inputs, state or step length do not fit the network or are out of range.
+    InvalidInput {
+        /// What is wrong.
+        what: &'static str,
+    },
+    /// Newton used every iteration allowed without meeting the tolerance.
+    MaxIterations {
+        /// Iterations used.
+        iterations: u32,
+        /// Largest node residual at the end [W].
+        residual_w: f64,
+    },
+    /// The Jacobian could not be factorised.
+    SingularJacobian {
+        /// The iteration at which it happened.
+        iteration: u32,
+    },
+    /// No fraction of the Newton update reduced the residual.
+    NoDescent {
+        /// The iteration at which it happened.
+        iteration: u32,
+        /// Largest node residual at that point [W].
+        residual_w: f64,
+    },
+    /// A flow or residual was not a finite number.
+    NonFinite {
+        /// The iteration at which it happened.
+        iteration: u32,
+    },
+}
+
+impl std::fmt::Display for FailReason {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            FailReason::InvalidInput { what } => write!(f, "invalid input: {what}"),
+            FailReason::MaxIterations {
+                iterations,
+                residual_w,
+            } => write!(
+                f,
+                "no convergence in {iterations} Newton iterations (largest residual {residual_w:.3e} W)"
+            ),
+            FailReason::SingularJacobian { iteration } => {
+                write!(f, "singular Jacobian at Newton iteration {iteration}")
+            }
+            FailReason::NoDescent {
+                iteration,
+                residual_w,
+            } => write!(
+                f,
+                "no reducing Newton update at iteration {iteration} (largest residual {residual_w:.3e} W)"
+            ),
+            FailReason::NonFinite { iteration } => {
+                write!(f, "non-finite flow at Newton iteration {iteration}")
+            }
+        }
+    }
+}
+
+/// Flows through one link at the end of a step (implicit Euler: held over the step).
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct LinkRecord {
+    /// Heat leaving end `a` toward end `b` [W]; for an enclosure the convective plus the
+    /// evaporative flux leaving the water surface.
+    pub heat_w: f64,
+    /// Convective part of an enclosure's flow [W] (0 for other links).
+    pub convective_w: f64,
+    /// Evaporation from the water node [kg s⁻¹] (negative: condensation onto it).
+    pub evaporation_kg_s: f64,
+    /// Vapour condensing on the cold surface [kg s⁻¹].
+    pub condensation_kg_s: f64,
+    /// Condensate reaching the trough, the distillate [kg s⁻¹].
+    pub collection_kg_s: f64,
+    /// Condensate dripping back into the water node [kg s⁻¹].
+    pub dripback_kg_s: f64,
+    /// Vapour leaking out of the still [kg s⁻¹].
+    pub leak_kg_s: f64,
+    /// Enthalpy leaving with the distillate, at h_f of the cold surface [W].
+    pub distillate_enthalpy_w: f64,
+    /// Enthalpy leaving with leaked vapour, at h_g of the water node [W].
+    pub leak_enthalpy_w: f64,
+}
+
+/// A node's sources and mass flows over a step.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct NodeRecord {
+    /// Absorbed sunlight or other source [W].
+    pub source_w: f64,
+    /// Feed into the node [kg s⁻¹].
+    pub feed_kg_s: f64,
+    /// Enthalpy entering with the feed [W].
+    pub feed_enthalpy_w: f64,
+    /// Drain from the node [kg s⁻¹].
+    pub drain_kg_s: f64,
+    /// Enthalpy leaving with the drained brine [W].
+    pub drain_enthalpy_w: f64,
+    /// Temperature change over the step [K].
+    pub temperature_change_k: f64,
+    /// The node was wet at the start of the step and is dry (water at or below its
+    /// `dry_mass_kg`) at the end: a dry-out event.
+    pub dried_out: bool,
+}
+
+/// Everything one converged step did. Reuse one record across steps: it is resized only when
+/// the network changes.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct StepRecord {
+    /// Step length [s] (∞ for a steady-state step).
+    pub dt_s: f64,
+    /// Change of stored energy over the step, from the states at its start and end [J].
+    pub stored_change_j: f64,
+    /// Per link, in link order.
+    pub links: Vec<LinkRecord>,
+    /// Per node, in node order.
+    pub nodes: Vec<NodeRecord>,
+}
+
+impl StepRecord {
+    /// A record sized for `net`.
+    pub fn new(net: &Network) -> Self {
+        StepRecord {
+            dt_s: 0.0,
+            stored_change_j: 0.0,
+            links: vec![LinkRecord::default(); net.links.len()],
+            nodes: vec![NodeRecord::default(); net.nodes.len()],
+        }
+    }
+    /// Mass evaporated in the step over every enclosure [kg] (0 for a steady step).
+    pub fn evaporated_kg(&self) -> f64 {
+        self.amount(|l| l.evaporation_kg_s)
+    }
+    /// Mass condensed in the step [kg].
+    pub fn condensed_kg(&self) -> f64 {
+        self.amount(|l| l.condensation_kg_s)
+    }
+    /// Distillate collected in the step [kg].
+    pub fn collected_kg(&self) -> f64 {
+        self.amount(|l| l.collection_kg_s)
+    }
+    /// Vapour leaked in the step [kg].
+    pub fn leaked_kg(&self) -> f64 {
+        self.amount(|l| l.leak_kg_s)
+    }
+    fn amount(&self, f: impl Fn(&LinkRecord) -> f64) -> f64 {
+        if self.dt_s.is_finite() {
+            self.links.iter().map(f).sum::<f64>() * self.dt_s
+        } else {
+            0.0
+        }
+    }
+}
+
+/// Per-step constants gathered before Newton starts.
+#[derive(Debug, Clone)]
+struct StepConsts {
+    t0: Vec<f64>,
+    m0: Vec<f64>,
+    /// Net mass flow into each node at the converged state [kg s⁻¹] (filled after Newton).
+    inflow: Vec<f64>,
+    wet: Vec<bool>,
+    p_ratio: Vec<f64>,
+}
+
+/// Newton scratch space.
+#[derive(Debug, Clone)]
+struct Scratch {
+    t: Vec<f64>,
+    t_trial: Vec<f64>,
+    r: Vec<f64>,
+    r_trial: Vec<f64>,
+    scale: Vec<f64>,
+    scale_trial: Vec<f64>,
+    dx: Vec<f64>,
+    jac: DMatrix<f64>,
+    jac_trial: DMatrix<f64>,
+    lu: DMatrix<f64>,
+}
+
+/// The network solver. Holds scratch space sized for one network, so a step allocates
+/// nothing.
+#[derive(Debug, Clone)]
+pub struct Solver<'n> {
+    net: &'n Network,
+    settings: SolverSettings,
+    consts: StepConsts,
+    ws: Scratch,
+}
+
+impl<'n> Solver<'n> {
+    /// A solver for `net` with validated `settings`.
+    pub fn new(net: &'n Network, settings: SolverSettings) -> Result<Self, NetworkError> {
+        settings.validate()?;
+        let n = net.nodes.len();
+        Ok(Solver {
+            net,
+            settings,
+            consts: StepConsts {
+                t0: vec![0.0; n],
+                m0: vec![0.0; n],
+                inflow: vec![0.0; n],
+                wet: vec![false; n],
+                p_ratio: vec![1.0; n],
+            },
+            ws: Scratch {
+                t: vec![0.0; n],
+                t_trial: vec![0.0; n],
+                r: vec![0.0; n],
+                r_trial: vec![0.0; n],
+                scale: vec![0.0; n],
+                scale_trial: vec![0.0; n],
+                dx: vec![0.0; n],
+                jac: DMatrix::zeros(n, n),
+                jac_trial: DMatrix::zeros(n, n),
+                lu: DMatrix::zeros(n, n),
+            },
+        })
+    }
+
+    /// The network this solver serves.
+    pub fn network(&self) -> &'n Network {
+        self.net
+    }
+
+    /// The settings in use.
+    pub fn settings(&self) -> &SolverSettings {
+        &self.settings
+    }
+
+    fn prepare(&mut self, state: &State, inputs: &Inputs, dt_s: f64) -> Result<f64, FailReason> {
+        let net = self.net;
+        let n = net.nodes.len();
+        if !inputs.fits(net) {
+            return Err(FailReason::InvalidInput {
+                what: "inputs were made for another network",
+            });
+        }
+        if state.t_k.len() != n || state.brine_kg.len() != n || state.salt_kg.len() != n {
+            return Err(FailReason::InvalidInput {
+                what: "state was made for another network",
+            });
+        }
+        if dt_s.is_nan() || dt_s <= 0.0 {
+            return Err(FailReason::InvalidInput {
+                what: "step length must be > 0 s (or infinite for the steady state)",
+            });
+        }
+        let (lo, hi) = TEMPERATURE_RANGE_K;
+        if state
+            .t_k
+            .iter()
+            .any(|t| !(t.is_finite() && *t >= lo && *t <= hi))
+        {
+            return Err(FailReason::InvalidInput {
+                what: "a node temperature is outside [150, 500] K",
+            });
+        }
+        let ws = &mut self.consts;
+        ws.t0.copy_from_slice(&state.t_k);
+        self.ws.t.copy_from_slice(&state.t_k);
+        for (i, node) in net.nodes.iter().enumerate() {
+            let m = state.brine_kg[i];
+            ws.m0[i] = if node.holds_water { m } else { 0.0 };
+            ws.wet[i] = node.holds_water && m - state.salt_kg[i] > node.dry_mass_kg;
+            ws.p_ratio[i] = net
+                .water
+                .vapour_pressure_ratio(salinity(m, state.salt_kg[i]));
+        }
+        Ok(if dt_s.is_finite() { 1.0 / dt_s } else { 0.0 })
+    }
+
+    /// Residual [W] and Jacobian [W K⁻¹] of every node balance at trial temperatures
+    /// `t_trial_k`, for a step of `dt_s` from `state` (∞ for the steady state).
+    ///
+    /// This is what Newton iterates on; it is public so tests can compare the analytic
+    /// Jacobian with finite differences.
+    pub fn evaluate(
+        &mut self,
+        state: &State,
+        inputs: &Inputs,
+        dt_s: f64,
+        t_trial_k: &[f64],
+        residual_w: &mut [f64],
+        jacobian: &mut DMatrix<f64>,
+    ) -> Result<(), FailReason> {
+        let n = self.net.nodes.len();
+        if t_trial_k.len() != n || residual_w.len() != n || jacobian.shape() != (n, n) {
+            return Err(FailReason::InvalidInput {
+                what: "trial vectors do not match the network",
+            });
+        }
+        let inv_dt = self.prepare(state, inputs, dt_s)?;
+        let mut scale = vec![0.0; n];
+        assemble(
+            self.net,
+            &self.consts,
+            inputs,
+            inv_dt,
+            t_trial_k,
+            residual_w,
+            &mut scale,
+            jacobian,
+        );
+        Ok(())
+    }
+
+    /// Advance `state` by `dt_s` [s] with the given inputs (`f64::INFINITY` for the steady
+    /// state). On [`StepOutcome::Converged`] the state and `record` hold the end of the step;
+    /// otherwise both are unchanged.
+    pub fn step(
+        &mut self,
+        state: &mut State,
+        inputs: &Inputs,
+        dt_s: f64,
+        record: &mut StepRecord,
+    ) -> StepOutcome {
+        let inv_dt = match self.prepare(state, inputs, dt_s) {
+            Ok(v) => v,
+            Err(reason) => return StepOutcome::Failed { reason },
+        };
+        let iterations = match self.newton(inputs, inv_dt) {
+            Ok(k) => k,
+            Err(reason) => return StepOutcome::Failed { reason },
+        };
+        let net = self.net;
+        let n = net.nodes.len();
+        let energy_before_j = net.stored_energy_j(state);
+        if record.links.len() != net.links.len() || record.nodes.len() != n {
+            *record = StepRecord::new(net);
+        }
+        fill_record(net, &self.consts, &self.ws.t, inputs, record);
+        record.dt_s = dt_s;
+        net_inflows_kg_s(net, record, &mut self.consts.inflow);
+
+        if dt_s.is_finite() {
+            // Mass update from the converged flows; stop at a dry-out instead of stepping
+            // through the kink. "Dry" is judged on the water in the brine (brine − salt).
+            let mut first_event: Option<StepEvent> = None;
+            for (i, node) in net.nodes.iter().enumerate() {
+                if !node.holds_water {
+                    continue;
+                }
+                let (m1, salt1) = self.masses_after(state, inputs, record, dt_s, i);
+                let w0 = self.consts.m0[i] - state.salt_kg[i];
+                let w1 = m1 - salt1;
+                if w1 < 0.0 {
+                    let target = (0.5 * node.dry_mass_kg).min(0.5 * w0.max(0.0));
+                    let time = (dt_s * (w0 - target) / (w0 - w1)).max(0.0);
+                    if first_event.is_none_or(
+                        |StepEvent::DryOut {
+                             time_to_event_s, ..
+                         }| { time < time_to_event_s },
+                    ) {
+                        first_event = Some(StepEvent::DryOut {
+                            node: i,
+                            time_to_event_s: time,
+                        });
+                    }
+                }
+            }
+            if let Some(event) = first_event {
+                return StepOutcome::Stopped { event };
+            }
+            for (i, node) in net.nodes.iter().enumerate() {
+                if !node.holds_water {
+                    continue;
+                }
+                let (m1, salt1) = self.masses_after(state, inputs, record, dt_s, i);
+                state.brine_kg[i] = m1;
+                state.salt_kg[i] = salt1;
+                record.nodes[i].dried_out = self.consts.wet[i] && m1 - salt1 <= node.dry_mass_kg;
+            }
+            state.time_s += dt_s;
+        }
+        for i in 0..n {
+            record.nodes[i].temperature_change_k = self.ws.t[i] - self.consts.t0[i];
+        }
+        state.t_k.copy_from_slice(&self.ws.t);
+        record.stored_change_j = net.stored_energy_j(state) - energy_before_j;
+        StepOutcome::Converged { iterations }
+    }
+
+    /// Brine and salt of water node `i` at the end of a converged step [kg]: evaporation
+    /// takes pure water, feed brings salt at the feed salinity, the drain takes it at the
+    /// salinity of the step's start.
+    fn masses_after(
+        &self,
+        state: &State,
+        inputs: &Inputs,
+        record: &StepRecord,
+        dt_s: f64,
+        i: usize,
+    ) -> (f64, f64) {
+        let m0 = self.consts.m0[i];
+        let salt0 = state.salt_kg[i];
+        let nr = &record.nodes[i];
+        let m1 = m0 + dt_s * self.consts.inflow[i];
+        let salt1 = salt0
+            + dt_s
+                * (nr.feed_kg_s * inputs.feed_salinity_g_kg[i]
+                    - nr.drain_kg_s * salinity(m0, salt0))
+                / 1000.0;
+        (m1, salt1.clamp(0.0, m1.max(0.0)))
+    }
+
+    fn newton(&mut self, inputs: &Inputs, inv_dt: f64) -> Result<u32, FailReason> {
+        let net = self.net;
+        let set = self.settings;
+        let c = &self.consts;
+        let ws = &mut self.ws;
+        let (t_lo, t_hi) = TEMPERATURE_RANGE_K;
+        assemble(
+            net,
+            c,
+            inputs,
+            inv_dt,
+            &ws.t,
+            &mut ws.r,
+            &mut ws.scale,
+            &mut ws.jac,
+        );
+        let mut k: u32 = 0;
+        loop {
+            if ws.r.iter().any(|v| !v.is_finite()) {
+                return Err(FailReason::NonFinite { iteration: k });
+            }
+            let worst = largest(&ws.r);
+            let converged =
+                ws.r.iter()
+                    .zip(&ws.scale)
+                    .all(|(r, sc)| r.abs() <= set.abs_tolerance_w + set.rel_tolerance * sc);
+            if converged {
+                return Ok(k);
+            }
+            if k >= set.max_iterations {
+                return Err(FailReason::MaxIterations {
+                    iterations: k,
+                    residual_w: worst,
+                });
+            }
+            k += 1;
+            // Solve J·dx = −r in the band of the Jacobian.
+            ws.lu.copy_from(&ws.jac);
+            for (d, r) in ws.dx.iter_mut().zip(&ws.r) {
+                *d = -r;
+            }
+            if !solve_banded(&mut ws.lu, &mut ws.dx, net.bandwidth) {
+                return Err(FailReason::SingularJacobian { iteration: k });
+            }
+            let big = largest(&ws.dx);
+            if !big.is_finite() {
+                return Err(FailReason::NonFinite { iteration: k });
+            }
+            let mut lambda = if big > set.max_newton_change_k {
+                set.max_newton_change_k / big
+            } else {
+                1.0
+            };
+            let norm0 = norm2(&ws.r);
+            let mut accepted = false;
+            for _ in 0..=set.max_halvings {
+                let mut in_range = true;
+                for ((tt, t), d) in ws.t_trial.iter_mut().zip(&ws.t).zip(&ws.dx) {
+                    *tt = t + lambda * d;
+                    in_range &= *tt >= t_lo && *tt <= t_hi;
+                }
+                if in_range {
+                    assemble(
+                        net,
+                        c,
+                        inputs,
+                        inv_dt,
+                        &ws.t_trial,
+                        &mut ws.r_trial,
+                        &mut ws.scale_trial,
+                        &mut ws.jac_trial,
+                    );
+                    let norm1 = norm2(&ws.r_trial);
+                    // Armijo-like sufficient decrease on the 2-norm of the residual.
+                    if norm1.is_finite() && norm1 <= (1.0 - 1e-4 * lambda) * norm0 {
+                        std::mem::swap(&mut ws.t, &mut ws.t_trial);
+                        std::mem::swap(&mut ws.r, &mut ws.r_trial);
+                        std::mem::swap(&mut ws.scale, &mut ws.scale_trial);
+                        std::mem::swap(&mut ws.jac, &mut ws.jac_trial);
+                        accepted = true;
+                        break;
+                    }
+                }
+                lambda *= 0.5;
+            }
+            if !accepted {
+                return Err(FailReason::NoDescent {
+                    iteration: k,
+                    residual_w: worst,
+                });
+            }
+        }
+    }
+}
+
+fn largest(v: &[f64]) -> f64 {
+    v.iter().fold(0.0_f64, |a, x| a.max(x.abs()))
+}
+
+fn norm2(v: &[f64]) -> f64 {
+    v.iter().map(|x| x * x).sum::<f64>().sqrt()
+}
+
+/// Gaussian elimination with partial pivoting restricted to a band of half-width `kl`
+/// (pivoting widens the upper band to 2·kl). Dense when `kl` ≥ n − 1. Solves in place:
+/// `b` becomes the solution. Returns false when a pivot vanishes.
+fn solve_banded(a: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
+    let n = b.len();
+    if n == 0 {
+        return true;
+    }
+    let mut amax = 0.0_f64;
+    for v in a.iter() {
+        amax = amax.max(v.abs());
+    }
+    let tiny = amax * 1e-14;
+    if !(amax.is_finite() && amax > 0.0) {
+        return false;
+    }
+    for k in 0..n {
+        let rmax = (k + kl).min(n - 1);
+        let cmax = (k + 2 * kl).min(n - 1);
+        let mut p = k;
+        let mut best = a[(k, k)].abs();
+        for i in k + 1..=rmax {
+            let v = a[(i, k)].abs();
+            if v > best {
+                best = v;
+                p = i;
+            }
+        }
+        if best <= tiny {
+            return false;
+        }
+        if p != k {
+            for j in k..=cmax {
+                a.swap((k, j), (p, j));
+            }
+            b.swap(k, p);
+        }
+        let piv = a[(k, k)];
+        for i in k + 1..=rmax {
+            let f = a[(i, k)] / piv;
+            if f != 0.0 {
+                for j in k + 1..=cmax {
+                    a[(i, j)] -= f * a[(k, j)];
+                }
+                b[i] -= f * b[k];
+            }
+        }
+    }
+    for k in (0..n).rev() {
+        let mut s = b[k];
+        for j in k + 1..=(k + 2 * kl).min(n - 1) {
+            s -= a[(k, j)] * b[j];
+        }
+        b[k] = s / a[(k, k)];
+    }
+    true
+}
+
+fn end_t(e: End, t: &[f64], inputs: &Inputs) -> f64 {
+    match e {
+        End::Node(i) => t[i.0],
+        End::Boundary(b) => inputs.boundary_t_k[b.0],
+    }
+}
+
+/// Flow of a heat-only link (conductance, variable conductance, radiation).
+fn heat_link(kind: &LinkKind, ua_input_w_k: f64, ta: f64, tb: f64) -> (f64, f64, f64) {
+    match kind {
+        LinkKind::Conductance { .. } => (ua_input_w_k * (ta - tb), ua_input_w_k, -ua_input_w_k),
+        LinkKind::Variable { model } => {
+            let f = model.heat_flow(ta, tb);
+            (f.q_w, f.dq_dta_w_k, f.dq_dtb_w_k)
+        }
+        LinkKind::Radiation { exchange_area_m2 } => {
+            let k = STEFAN_BOLTZMANN_W_M2_K4 * exchange_area_m2;
+            let (ta2, tb2) = (ta * ta, tb * tb);
+            (
+                k * (ta2 * ta2 - tb2 * tb2),
+                4.0 * k * ta2 * ta,
+                -4.0 * k * tb2 * tb,
+            )
+        }
+        LinkKind::Enclosure { .. } => (0.0, 0.0, 0.0),
+    }
+}
+
+/// The flows of an enclosure link and their derivatives.
+#[derive(Debug, Clone, Copy, Default)]
+struct EnclosureFlows {
+    q_conv_w: f64,
+    q_evap_w: f64,
+    mdot_kg_s: f64,
+    /// Share of ṁ dripping back to the water node [-].
+    phi: f64,
+    /// Share of ṁ condensing on the cold node [-].
+    psi: f64,
+    hf_w: f64,
+    hf_c: f64,
+    hfg_w: f64,
+    /// dG/dT for the water node (w) and cold node (c).
+    dgw_dtw: f64,
+    dgw_dtc: f64,
+    dgc_dtw: f64,
+    dgc_dtc: f64,
+    /// Heat gained by the water node relative to its own liquid enthalpy [W].
+    g_w: f64,
+    /// Heat gained by the cold node [W].
+    g_c: f64,
+}
+
+#[allow(clippy::too_many_arguments)]
+fn enclosure_flows(
+    net: &Network,
+    c: &StepConsts,
+    w: usize,
+    tw: f64,
+    tc: f64,
+    area_m2: f64,
+    model: &dyn super::models::EnclosureModel,
+    collected: f64,
+    leaked: f64,
+) -> EnclosureFlows {
+    let water = net.water.as_ref();
+    let ratio = c.p_ratio[w];
+    let p_hot = ratio * water.saturation_pressure_pa(tw);
+    let dp_hot = ratio * water.saturation_pressure_derivative_pa_k(tw);
+    let p_cold = water.saturation_pressure_pa(tc);
+    let dp_cold = water.saturation_pressure_derivative_pa_k(tc);
+    let fl = model.transfer(tw, tc, p_hot, dp_hot, p_cold, dp_cold);
+    let q_conv = fl.q_convective_w_m2 * area_m2;
+    let (dqc_w, dqc_c) = (
+        fl.dq_convective_dt_hot * area_m2,
+        fl.dq_convective_dt_cold * area_m2,
+    );
+    let (q_evap, dqe_w, dqe_c) = if c.wet[w] {
+        (
+            fl.q_evaporative_w_m2 * area_m2,
+            fl.dq_evaporative_dt_hot * area_m2,
+            fl.dq_evaporative_dt_cold * area_m2,
+        )
+    } else {
+        (0.0, 0.0, 0.0)
+    };
+    let hfg = water.latent_heat_j_kg(tw);
+    let dhfg = water.latent_heat_derivative_j_kg_k(tw);
+    let mdot = q_evap / hfg;
+    let dm_w = dqe_w / hfg - q_evap * dhfg / (hfg * hfg);
+    let dm_c = dqe_c / hfg;
+    // Reversed flux (cold side warmer): vapour from the condensate film condenses back
+    // into the water node; nothing is collected or leaked.
+    let (phi, psi) = if mdot >= 0.0 {
+        ((1.0 - leaked) * (1.0 - collected), 1.0 - leaked)
+    } else {
+        (1.0, 1.0)
+    };
+    let hf_w = water.liquid_enthalpy_j_kg(tw);
+    let hf_c = water.liquid_enthalpy_j_kg(tc);
+    let cp_w = water.liquid_heat_capacity_j_kg_k(tw);
+    let cp_c = water.liquid_heat_capacity_j_kg_k(tc);
+    let hg_w = hf_w + hfg;
+    let drip = phi * mdot;
+    EnclosureFlows {
+        q_conv_w: q_conv,
+        q_evap_w: q_evap,
+        mdot_kg_s: mdot,
+        phi,
+        psi,
+        hf_w,
+        hf_c,
+        hfg_w: hfg,
+        g_w: -(q_conv + q_evap) + drip * (hf_c - hf_w),
+        g_c: q_conv + psi * mdot * (hg_w - hf_c),
+        dgw_dtw: -(dqc_w + dqe_w) + phi * dm_w * (hf_c - hf_w) - drip * cp_w,
+        dgw_dtc: -(dqc_c + dqe_c) + phi * dm_c * (hf_c - hf_w) + drip * cp_c,
+        dgc_dtw: dqc_w + psi * dm_w * (hg_w - hf_c) + psi * mdot * (cp_w + dhfg),
+        dgc_dtc: dqc_c + psi * dm_c * (hg_w - hf_c) - psi * mdot * cp_c,
+    }
+}
+
+/// Residual, per-node term magnitudes and Jacobian at temperatures `t`.
+#[allow(clippy::too_many_arguments)]
+fn assemble(
+    net: &Network,
+    c: &StepConsts,
+    inputs: &Inputs,
+    inv_dt: f64,
+    t: &[f64],
+    r: &mut [f64],
+    scale: &mut [f64],
+    jac: &mut DMatrix<f64>,
+) {
+    let water = net.water.as_ref();
+    jac.fill(0.0);
+    for (i, node) in net.nodes.iter().enumerate() {
+        let ti = t[i];
+        let mut res = -inputs.source_w[i];
+        let mut sc = inputs.source_w[i].abs();
+        let mut diag = 0.0;
+        if inv_dt > 0.0 {
+            let m0 = c.m0[i];
+            let mut store = node.capacity_j_k * (ti - c.t0[i]);
+            let mut cap = node.capacity_j_k;
+            sc += inv_dt * node.capacity_j_k * ti;
+            if m0 > 0.0 {
+                let h1 = water.liquid_enthalpy_j_kg(ti);
+                store += m0 * (h1 - water.liquid_enthalpy_j_kg(c.t0[i]));
+                cap += m0 * water.liquid_heat_capacity_j_kg_k(ti);
+                sc += inv_dt * m0 * h1.abs();
+            }
+            res += inv_dt * store;
+            diag += inv_dt * cap;
+        }
+        let feed = inputs.feed_kg_s[i];
+        if node.holds_water && feed > 0.0 {
+            let g = feed
+                * (water.liquid_enthalpy_j_kg(inputs.feed_t_k[i]) - water.liquid_enthalpy_j_kg(ti));
+            res -= g;
+            sc += g.abs();
+            diag += feed * water.liquid_heat_capacity_j_kg_k(ti);
+        }
+        r[i] = res;
+        scale[i] = sc;
+        jac[(i, i)] = diag;
+    }
+    for (l, link) in net.links.iter().enumerate() {
+        if let LinkKind::Enclosure {
+            area_m2,
+            model,
+            collected_fraction,
+            leaked_fraction,
+        } = &link.kind
+        {
+            let (End::Node(w), End::Node(cn)) = (link.a, link.b) else {
+                continue;
+            };
+            let (w, cn) = (w.0, cn.0);
+            let f = enclosure_flows(
+                net,
+                c,
+                w,
+                t[w],
+                t[cn],
+                *area_m2,
+                model.as_ref(),
+                *collected_fraction,
+                *leaked_fraction,
+            );
+            r[w] -= f.g_w;
+            r[cn] -= f.g_c;
+            scale[w] += f.g_w.abs();
+            scale[cn] += f.g_c.abs();
+            jac[(w, w)] -= f.dgw_dtw;
+            jac[(w, cn)] -= f.dgw_dtc;
+            jac[(cn, w)] -= f.dgc_dtw;
+            jac[(cn, cn)] -= f.dgc_dtc;
+            continue;
+        }
+        let ta = end_t(link.a, t, inputs);
+        let tb = end_t(link.b, t, inputs);
+        let (q, dqa, dqb) = heat_link(&link.kind, inputs.conductance_w_k[l], ta, tb);
+        if let End::Node(a) = link.a {
+            r[a.0] += q;
+            scale[a.0] += q.abs();
+            jac[(a.0, a.0)] += dqa;
+            if let End::Node(b) = link.b {
+                jac[(a.0, b.0)] += dqb;
+            }
+        }
+        if let End::Node(b) = link.b {
+            r[b.0] -= q;
+            scale[b.0] += q.abs();
+            jac[(b.0, b.0)] -= dqb;
+            if let End::Node(a) = link.a {
+                jac[(b.0, a.0)] -= dqa;
+            }
+        }
+    }
+}
+
+/// Fill the record from the converged temperatures `t` — a separate pass over the link
+/// physics, independent of the Newton residual.
+fn fill_record(net: &Network, c: &StepConsts, t: &[f64], inputs: &Inputs, rec: &mut StepRecord) {
+    let water = net.water.as_ref();
+    for (l, link) in net.links.iter().enumerate() {
+        let lr = &mut rec.links[l];
+        *lr = LinkRecord::default();
+        if let LinkKind::Enclosure {
+            area_m2,
+            model,
+            collected_fraction,
+            leaked_fraction,
+        } = &link.kind
+        {
+            let (End::Node(w), End::Node(cn)) = (link.a, link.b) else {
+                continue;
+            };
+            let f = enclosure_flows(
+                net,
+                c,
+                w.0,
+                t[w.0],
+                t[cn.0],
+                *area_m2,
+                model.as_ref(),
+                *collected_fraction,
+                *leaked_fraction,
+            );
+            let m = f.mdot_kg_s;
+            let cond = f.psi * m;
+            let leak = m - cond;
+            let drip = f.phi * m;
+            lr.heat_w = f.q_conv_w + f.q_evap_w;
+            lr.convective_w = f.q_conv_w;
+            lr.evaporation_kg_s = m;
+            lr.condensation_kg_s = cond;
+            lr.dripback_kg_s = drip;
+            lr.collection_kg_s = cond - drip;
+            lr.leak_kg_s = leak;
+            lr.distillate_enthalpy_w = (cond - drip) * f.hf_c;
+            lr.leak_enthalpy_w = leak * (f.hf_w + f.hfg_w);
+            continue;
+        }
+        let ta = end_t(link.a, t, inputs);
+        let tb = end_t(link.b, t, inputs);
+        lr.heat_w = heat_link(&link.kind, inputs.conductance_w_k[l], ta, tb).0;
+    }
+    for (i, node) in net.nodes.iter().enumerate() {
+        let nr = &mut rec.nodes[i];
+        *nr = NodeRecord {
+            source_w: inputs.source_w[i],
+            ..NodeRecord::default()
+        };
+        if node.holds_water {
+            nr.feed_kg_s = inputs.feed_kg_s[i];
+            nr.feed_enthalpy_w = nr.feed_kg_s * water.liquid_enthalpy_j_kg(inputs.feed_t_k[i]);
+            nr.drain_kg_s = inputs.drain_kg_s[i];
+            nr.drain_enthalpy_w = nr.drain_kg_s * water.liquid_enthalpy_j_kg(t[i]);
+        }
+    }
+}
+
+/// Net mass flow into every node [kg s⁻¹]: feed − drain − evaporation + drip-back
+/// (zero for nodes without water).
+fn net_inflows_kg_s(net: &Network, rec: &StepRecord, inflow: &mut [f64]) {
+    for (f, nr) in inflow.iter_mut().zip(&rec.nodes) {
+        *f = nr.feed_kg_s - nr.drain_kg_s;
+    }
+    for (link, lr) in net.links.iter().zip(&rec.links) {
+        if let (LinkKind::Enclosure { .. }, End::Node(w)) = (&link.kind, link.a) {
+            inflow[w.0] += lr.dripback_kg_s - lr.evaporation_kg_s;
+        }
+    }
+}
