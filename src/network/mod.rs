@@ -59,8 +59,7 @@ pub use drive::{AdvanceError, AdvanceSummary, Simulation, StepControl};
 pub use models::{
     ConductanceModel, CorrelationEnclosure, DUNKLE_LEWIS_FACTOR_K_PA, EnclosureFlux,
     EnclosureModel, FixedCoefficientEnclosure, LinkFlow, PowerLawConductance, SALT_SATURATION_G_KG,
-    SeawaterProperties, SimpleWater, WaterProperties, malik_saturation_pressure_derivative_pa_k,
-    malik_saturation_pressure_pa, nayar_vapour_pressure_ratio,
+    SeawaterProperties, SimpleWater, WaterProperties,
 };
 pub use solver::{
     FailReason, LinkRecord, NodeRecord, Solver, SolverSettings, StepEvent, StepOutcome, StepRecord,
