@@ -26,7 +26,7 @@ pub mod stochastic;
 mod sun_table;
 pub mod temperature;
 
-pub use file::{WeatherFileError, WeatherIssue, load_weather_file};
+pub use file::{LoadedWeather, WeatherFileError, WeatherIssue, load_weather_file};
 pub use horizon::Horizon;
 pub use monthly::{Humidity, MonthlyMeans, average_days};
 pub use stochastic::{StochasticSettings, stochastic_year};
@@ -354,4 +354,71 @@ pub(crate) fn dew_point_magnus_k(t_air_k: f64, rh: f64) -> f64 {
     let t_c = t_air_k - crate::physics::constants::ZERO_CELSIUS_K;
     let gamma = rh.clamp(0.001, 1.0).ln() + A * t_c / (B_C + t_c);
     B_C * gamma / (A - gamma) + crate::physics::constants::ZERO_CELSIUS_K
+}
+
+/// Where a site's weather comes from.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ClimateSource {
+    /// Twelve monthly means → one average day per month.
+    Monthly(Box<MonthlyMeans>),
+    /// An hourly weather file.
+    File(Box<file::WeatherFileSpec>),
+}
+
+/// Site weather ready for the later stages, with any warnings from reading it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SiteWeather {
+    /// The hourly records.
+    pub series: WeatherSeries,
+    /// Warnings (repairs, assumptions) with their lines; empty for monthly means.
+    pub warnings: Vec<WeatherIssue>,
+}
+
+/// Build the hourly weather of a site from its source.
+pub fn site_weather(
+    site: &SiteLocation,
+    source: &ClimateSource,
+) -> Result<SiteWeather, ClimateError> {
+    match source {
+        ClimateSource::Monthly(means) => {
+            let table = SunTable::new(site)?;
+            Ok(SiteWeather {
+                series: average_days(means, site, &table)?,
+                warnings: Vec::new(),
+            })
+        }
+        ClimateSource::File(spec) => {
+            let loaded = load_weather_file(spec, site)?;
+            Ok(SiteWeather {
+                series: loaded.series,
+                warnings: loaded.warnings,
+            })
+        }
+    }
+}
+
+/// Climate errors are bad input (exit code 2): each becomes a design issue naming the
+/// weather file and line, or the input field.
+impl From<ClimateError> for crate::Error {
+    fn from(e: ClimateError) -> Self {
+        use crate::design::{DesignErrors, DesignIssue};
+        let issues = match e {
+            ClimateError::BadInput { field, message } => vec![DesignIssue {
+                file: std::path::PathBuf::new(),
+                line_col: None,
+                path: field,
+                message,
+            }],
+            ClimateError::WeatherFile(w) => w
+                .errors()
+                .map(|i| DesignIssue {
+                    file: w.path.clone(),
+                    line_col: i.line.map(|l| (l, 1)),
+                    path: String::new(),
+                    message: i.kind.to_string(),
+                })
+                .collect(),
+        };
+        crate::Error::Design(DesignErrors(issues))
+    }
 }

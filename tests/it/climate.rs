@@ -820,3 +820,20 @@ fn invalid_monthly_means_are_refused_with_the_field_named() {
     };
     assert!(SunTable::new(&bad_site).is_err());
 }
+
+#[test]
+fn climate_errors_are_bad_input_naming_file_and_line() {
+    use stillbench::climate::{ClimateSource, site_weather};
+    let spec = csv_spec(data("bad_night.csv"), GapFill::Stop);
+    let err = site_weather(&north_site(), &ClimateSource::File(Box::new(spec))).unwrap_err();
+    let e: stillbench::Error = err.into();
+    assert_eq!(e.exit_code(), stillbench::ExitCode::BadInput);
+    assert!(e.to_string().contains("bad_night.csv:3:1"), "{e}");
+    let site = north_site();
+    let ok = site_weather(
+        &site,
+        &ClimateSource::Monthly(Box::new(means_with_kt(&site, 0.5))),
+    )
+    .unwrap();
+    assert_eq!(ok.series.hours.len(), 288);
+}
