@@ -840,6 +840,9 @@ fn parse_csv(
     })
 }
 
+/// Most records a file may expand to, counting missing periods.
+const MAX_RECORDS: usize = 10_000_000;
+
 /// Fields of an EPW data row (EnergyPlus Auxiliary Programs, "Weather Data Format").
 const EPW_FIELDS: usize = 35;
 
@@ -1057,7 +1060,9 @@ fn build_series(
                 );
             } else if d > step {
                 let missing = (d / step - 1) as usize;
-                if missing > 366 * 24 * 60 {
+                // Bound the records made for missing periods (a year of minutes per gap,
+                // ten million in all) so a corrupt stamp cannot exhaust memory.
+                if missing > 366 * 24 * 60 || full.len() + missing > MAX_RECORDS {
                     issues.error(
                         row.line,
                         IssueKind::MissingPeriods {
@@ -1403,8 +1408,10 @@ fn to_series(
             let t_dew_c = if let Some(d) = r.v[DEW] {
                 d
             } else if let Some(rh) = r.v[RH] {
-                super::dew_point_magnus_k(t_air_c + ZERO_CELSIUS_K, rh.clamp(0.01, 1.0))
-                    - ZERO_CELSIUS_K
+                crate::physics::humid_air::dew_point_k(
+                    t_air_c + ZERO_CELSIUS_K,
+                    rh.clamp(0.01, 1.0),
+                ) - ZERO_CELSIUS_K
             } else {
                 day_min.get(&g.local_day).copied().unwrap_or(t_air_c)
             };

@@ -341,21 +341,6 @@ pub fn month_of_day(day_of_year: u32) -> u32 {
 /// Number of days in each month of a non-leap year.
 pub const DAYS_IN_MONTH: [u32; 12] = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
 
-/// Dew point [K] from air temperature [K] and relative humidity [-] (0…1], by the Magnus
-/// form with the coefficients of Alduchov & Eskridge (1996), "Improved Magnus form
-/// approximation of saturation vapor pressure", J. Appl. Meteorol. 35:601–609 (a = 17.625,
-/// b = 243.04 °C; from memory): γ = ln(RH) + aT/(b + T), T_d = bγ/(a − γ), T in °C.
-///
-/// Notes: a local helper until the humid-air module's dew point is merged; RH is clamped to
-/// 0.001…1 so the logarithm stays finite.
-pub(crate) fn dew_point_magnus_k(t_air_k: f64, rh: f64) -> f64 {
-    const A: f64 = 17.625;
-    const B_C: f64 = 243.04;
-    let t_c = t_air_k - crate::physics::constants::ZERO_CELSIUS_K;
-    let gamma = rh.clamp(0.001, 1.0).ln() + A * t_c / (B_C + t_c);
-    B_C * gamma / (A - gamma) + crate::physics::constants::ZERO_CELSIUS_K
-}
-
 /// Where a site's weather comes from.
 #[derive(Debug, Clone, PartialEq)]
 pub enum ClimateSource {

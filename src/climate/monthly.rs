@@ -145,7 +145,7 @@ impl MonthlyMeans {
             Humidity::Default => tn,
             Humidity::RelativePercent(rh) => {
                 let t_mean_k = 0.5 * (tx + tn) + ZERO_CELSIUS_K;
-                super::dew_point_magnus_k(t_mean_k, rh[m] / 100.0) - ZERO_CELSIUS_K
+                crate::physics::humid_air::dew_point_k(t_mean_k, rh[m] / 100.0) - ZERO_CELSIUS_K
             }
         }
     }
