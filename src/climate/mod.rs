@@ -38,17 +38,17 @@ use crate::physics::sun::SunPosition;
 /// Where the site is and what surrounds it.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SiteLocation {
-    /// Latitude [deg], north positive, within −90…90.
+    /// Latitude \[deg\], north positive, within −90…90.
     pub latitude_deg: f64,
-    /// Longitude [deg], east positive, within −180…180.
+    /// Longitude \[deg\], east positive, within −180…180.
     pub longitude_deg: f64,
-    /// Elevation above sea level [m].
+    /// Elevation above sea level \[m\].
     pub elevation_m: f64,
-    /// Offset of the site's standard (not daylight-saving) time from UTC [h], east positive.
+    /// Offset of the site's standard (not daylight-saving) time from UTC \[h\], east positive.
     pub utc_offset_h: f64,
     /// Ground albedo (solar reflectance of the foreground) [-], within 0…1.
     pub albedo: f64,
-    /// Horizon profile: (azimuth [deg] clockwise from north, obstruction elevation [deg]).
+    /// Horizon profile: (azimuth \[deg\] clockwise from north, obstruction elevation \[deg\]).
     /// Empty means a free horizon. See [`Horizon`] for the interpolation.
     pub horizon: Vec<(f64, f64)>,
 }
@@ -74,7 +74,7 @@ impl SiteLocation {
         out
     }
 
-    /// Latitude [rad].
+    /// Latitude \[rad\].
     pub fn latitude_rad(&self) -> f64 {
         self.latitude_deg.to_radians()
     }
@@ -83,9 +83,9 @@ impl SiteLocation {
 /// A flat receiving surface (a still's cover, a pyranometer).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Plane {
-    /// Tilt from horizontal [rad], 0…π/2 for a cover.
+    /// Tilt from horizontal \[rad\], 0…π/2 for a cover.
     pub tilt_rad: f64,
-    /// Azimuth the surface faces [rad], clockwise from north (π = facing south).
+    /// Azimuth the surface faces \[rad\], clockwise from north (π = facing south).
     pub azimuth_rad: f64,
 }
 
@@ -138,9 +138,9 @@ pub struct HourlyWeather {
     pub month: u32,
     /// Day of the year 1…366.
     pub day_of_year: u32,
-    /// Solar time at the middle of the period [h], 0…24.
+    /// Solar time at the middle of the period \[h\], 0…24.
     pub hour_mid_solar_h: f64,
-    /// Length of the period [h] (1 for hourly data).
+    /// Length of the period \[h\] (1 for hourly data).
     pub period_h: f64,
     /// Global horizontal irradiance, period mean [W m⁻²].
     pub ghi_w_m2: f64,
@@ -148,13 +148,13 @@ pub struct HourlyWeather {
     pub dhi_w_m2: f64,
     /// Direct normal irradiance, consistent with `ghi = dhi + dni·cos(zenith)` [W m⁻²].
     pub dni_w_m2: f64,
-    /// Air temperature [K].
+    /// Air temperature \[K\].
     pub t_air_k: f64,
-    /// Dew-point temperature [K].
+    /// Dew-point temperature \[K\].
     pub t_dew_k: f64,
     /// Wind speed at `wind_height_m` [m s⁻¹].
     pub wind_m_s: f64,
-    /// Height of the wind measurement above ground [m].
+    /// Height of the wind measurement above ground \[m\].
     pub wind_height_m: f64,
     /// Sun position used for this period: the middle of the part of the period when the sun
     /// is up (the middle of the period when it is down all period).
