@@ -549,6 +549,56 @@ fn spa_matches_pvlib() {
     }
 }
 
+/// The simple chain (clock time → solar time, D&B eq. 1.5.2 with our east-positive longitude;
+/// Spencer declination; D&B eqs. 1.6.5–1.6.6) against the SPA rows of `sun_spa.csv` (pvlib
+/// 0.16.1) with the sun above 70° zenith. This checks the sign conventions end to end.
+/// Tolerance 0.5°: the series take a whole day number, and near the equinoxes the declination
+/// moves by up to 0.4° a day (23.45°·2π/365), so up to ~0.3° comes from the time of day alone
+/// (0.33° seen on the October row at 19:30 UTC); Spencer's declination is good to about 0.035°
+/// and his equation of time to about 0.5 min (0.13° of hour angle) (from memory); refraction
+/// adds up to 0.05° at 70°; parallax < 0.003°. A sign error in the longitude or time-zone
+/// term would be off by degrees. The clock time used is
+/// UTC with a zero offset, which tests the longitude term on its own.
+#[test]
+fn simple_chain_agrees_with_spa() {
+    use chrono::{Datelike, Timelike};
+    let mut checked = 0;
+    for r in fixture("sun_spa.csv") {
+        let want_zen = num(&r, "apparent_zenith_deg");
+        if want_zen > 70.0 {
+            continue;
+        }
+        let utc: chrono::DateTime<chrono::Utc> = r["utc"].parse().unwrap();
+        let n = utc.ordinal();
+        let clock_h = f64::from(utc.num_seconds_from_midnight()) / 3600.0;
+        let t_solar = solar_time_hours(clock_h, 0.0, num(&r, "longitude_deg"), n);
+        let sun = sun_position_from_hour_angle(
+            rad(num(&r, "latitude_deg")),
+            declination_spencer_rad(n),
+            hour_angle_rad(t_solar),
+        );
+        let what = &r["utc"];
+        assert_close(
+            sun.zenith_rad.to_degrees(),
+            want_zen,
+            0.5,
+            &format!("zenith {what}"),
+        );
+        // Azimuth error scales with 1/sin θz; skip it with the sun within 5° of overhead.
+        if want_zen > 5.0 {
+            let daz = (sun.azimuth_rad.to_degrees() - num(&r, "azimuth_deg") + 540.0)
+                .rem_euclid(360.0)
+                - 180.0;
+            assert!(
+                daz.abs() <= 0.5 / rad(want_zen).sin(),
+                "azimuth {what}: {daz}°"
+            );
+        }
+        checked += 1;
+    }
+    assert!(checked >= 6, "only {checked} rows checked");
+}
+
 // ---------------------------------------------------------------------------------------
 // Physical-law properties
 // ---------------------------------------------------------------------------------------
