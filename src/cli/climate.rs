@@ -12,15 +12,42 @@ use stillbench::climate::{ClimateSource, Plane, SiteLocation, SkyModel, site_wea
 
 /// Arguments of `stillbench climate`.
 #[derive(Debug, Args)]
+#[command(after_help = "Examples:
+  stillbench climate designs/demo-coast.toml
+      monthly table: irradiation on the horizontal and on every cover plane, temperatures, wind
+  stillbench climate designs/demo-coast.toml --format csv --out coast-hourly.csv
+      also write every hour of the average days (or of the weather file) as CSV")]
 pub struct ClimateArgs {
-    /// The design file (TOML).
-    pub design: PathBuf,
-    /// Export the hourly series in this format.
+    /// The design file (TOML). Without it, the built-in demo design.
+    pub design: Option<PathBuf>,
+    /// Export the hourly series in this format (to standard output, or to --out).
     #[arg(long, value_enum)]
     pub format: Option<ExportFormat>,
-    /// Write the export to this file instead of standard output.
-    #[arg(long)]
+    /// Write the hourly export to this file (atomically) instead of standard output.
+    #[arg(long, requires = "format")]
     pub out: Option<PathBuf>,
+    /// Replace an existing --out file.
+    #[arg(long)]
+    pub force: bool,
+}
+
+/// Run `stillbench climate`: read the design, resolve its site, print and export.
+pub fn run(args: &ClimateArgs) -> anyhow::Result<()> {
+    let loaded = super::load(args.design.as_deref())?;
+    let design = &loaded.design;
+    let inputs = ClimateInputs {
+        site: design.site.location(),
+        source: design.site.climate_source(),
+        planes: design
+            .variants
+            .iter()
+            .flat_map(|v| v.cover_planes())
+            .collect(),
+        sky_model: SkyModel::default(),
+    };
+    let stdout = std::io::stdout();
+    let stderr = std::io::stderr();
+    run_with(args, &inputs, &mut stdout.lock(), &mut stderr.lock())
 }
 
 /// Hourly export formats.
@@ -63,23 +90,24 @@ pub fn run_with(
         render_monthly_table(out, &rows, &names)?;
         return Ok(());
     };
-    let mut sink: Box<dyn Write> = match &args.out {
+    let write_export = |w: &mut dyn Write| -> std::io::Result<()> {
+        match format {
+            ExportFormat::Csv => {
+                write_hourly_csv(w, &weather.series, &inputs.planes, inputs.sky_model)
+            }
+            ExportFormat::Json => write_hourly_json(w, &weather.series),
+        }
+    };
+    match &args.out {
         Some(path) => {
             render_monthly_table(out, &rows, &names)?;
-            let file = std::fs::File::create(path).map_err(|source| stillbench::Error::Io {
-                path: path.display().to_string(),
-                source,
-            })?;
-            Box::new(std::io::BufWriter::new(file))
+            stillbench::output::write_atomic(path, args.force, write_export)?;
+            writeln!(err, "wrote {}", path.display())?;
         }
-        None => Box::new(&mut *out),
-    };
-    match format {
-        ExportFormat::Csv => {
-            write_hourly_csv(&mut sink, &weather.series, &inputs.planes, inputs.sky_model)?
+        None => {
+            write_export(out)?;
+            out.flush()?;
         }
-        ExportFormat::Json => write_hourly_json(&mut sink, &weather.series)?,
     }
-    sink.flush()?;
     Ok(())
 }
