@@ -217,6 +217,6 @@ pub fn write_hourly_json(w: &mut (impl Write + ?Sized), series: &WeatherSeries) 
             })
         })
         .collect();
-    serde_json::to_writer_pretty(&mut *w, &rows).map_err(io::Error::other)?;
+    serde_json::to_writer_pretty(&mut *w, &rows).map_err(io::Error::from)?;
     writeln!(w)
 }

@@ -4,7 +4,8 @@
 //! design's fields are turned into [`SiteLocation`], [`ClimateSource`] and cover [`Plane`]s.
 
 use crate::climate::file::{
-    Column, ColumnMap, FileFormat, GapFill as FileGapFill, PeriodConvention, WeatherFileSpec,
+    Column, ColumnMap, FileFormat, GapFill as FileGapFill, PeriodConvention, PoaColumn,
+    WeatherFileSpec,
 };
 use crate::climate::monthly::{Humidity as ClimateHumidity, MonthlyMeans};
 use crate::climate::{ClimateSource, Plane, SiteLocation};
@@ -13,9 +14,9 @@ use super::schema::{
     Climate, GapFill, Humidity, Period, Site, Variant, VariantKind, WeatherFormat,
 };
 
-/// Wind-measurement height assumed for weather files [m]: the standard 10 m mast of synoptic
-/// stations (WMO Guide to Instruments and Methods of Observation, WMO-No. 8 — from memory).
-pub const WEATHER_FILE_WIND_HEIGHT_M: f64 = 10.0;
+/// Wind-measurement height of EPW files [m]: the standard 10 m mast of synoptic stations
+/// (WMO Guide to Instruments and Methods of Observation, WMO-No. 8 — from memory).
+pub const EPW_WIND_HEIGHT_M: f64 = 10.0;
 
 impl Site {
     /// The site's location, albedo and horizon as the climate module takes them.
@@ -57,8 +58,16 @@ impl Site {
                     columns.dhi = c.dhi_w_m2.as_deref().map(Column::named);
                     columns.dni = c.dni_w_m2.as_deref().map(Column::named);
                     columns.t_air = Column::named(&c.t_air_c);
-                    columns.wind = Some(Column::named(&c.wind_m_s));
+                    columns.wind = c.wind_m_s.as_deref().map(Column::named);
                     columns.relative_humidity = c.rh_percent.as_deref().map(Column::named);
+                    columns.dew_point = c.dew_point_c.as_deref().map(Column::named);
+                    columns.poa = match (&c.poa_w_m2, c.poa_tilt_deg, c.poa_azimuth_deg) {
+                        (Some(name), Some(tilt), Some(az)) => Some(PoaColumn {
+                            column: Column::named(name),
+                            plane: Plane::from_degrees(tilt, az),
+                        }),
+                        _ => None,
+                    };
                 }
                 ClimateSource::File(Box::new(WeatherFileSpec {
                     path: f.path.clone(),
@@ -78,7 +87,10 @@ impl Site {
                             max_gap_h: f.max_gap_h,
                         },
                     },
-                    wind_height_m: WEATHER_FILE_WIND_HEIGHT_M,
+                    wind_height_m: match f.format {
+                        WeatherFormat::Csv => f.wind_height_m,
+                        WeatherFormat::Epw => EPW_WIND_HEIGHT_M,
+                    },
                 }))
             }
         }

@@ -22,7 +22,7 @@ pub mod spans;
 mod summary;
 mod validate;
 
-pub use climate_inputs::WEATHER_FILE_WIND_HEIGHT_M;
+pub use climate_inputs::EPW_WIND_HEIGHT_M;
 pub use library::{
     Condensate, CoverProps, InsulationProps, Item, Library, LibraryHeader, PlateProps, ROLE_NAMES,
     Role, Stock, SurfaceProps, Unit, WickProps,

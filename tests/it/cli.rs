@@ -71,3 +71,36 @@ fn a_failed_atomic_write_leaves_the_earlier_file_and_no_temporary() {
     let left: Vec<_> = fs::read_dir(dir.path()).unwrap().collect();
     assert_eq!(left.len(), 1, "temporary file left behind: {left:?}");
 }
+
+#[test]
+fn climate_reads_csv_and_epw_weather_files_named_in_a_design() {
+    // Synthetic one-/two-day files (tests/data/weather/README.md) for an invented site; the
+    // CSV holds one day in March, the EPW two. Run from another directory to prove that the
+    // weather-file path is resolved against the design file, not the working directory.
+    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
+    for design in ["weather-csv.toml", "weather-epw.toml"] {
+        let path = root.join("tests/data/designs").join(design);
+        let out = stillbench()
+            .current_dir(std::env::temp_dir())
+            .arg("climate")
+            .arg(&path)
+            .output()
+            .unwrap();
+        assert!(out.status.success(), "{design}: {out:?}");
+        let text = String::from_utf8(out.stdout).unwrap();
+        assert!(text.contains("Mar"), "{design}: {text}");
+    }
+}
+
+#[test]
+fn a_bad_weather_file_fails_with_its_line_number() {
+    // tests/data/weather/README.md: bad_night.csv has GHI 300 W/m² at 02:00 on line 3.
+    let out = stillbench()
+        .args(["climate", "tests/data/designs/weather-bad-night.toml"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2), "{out:?}");
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("bad_night.csv:3"), "{err}");
+    assert!(!err.contains("panicked"), "{err}");
+}
