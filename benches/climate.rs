@@ -112,3 +112,22 @@ fn stochastic_daily_clearness_year(bencher: divan::Bencher) {
         model.daily_clearness(7, divan::black_box(k)).len()
     });
 }
+
+#[divan::bench(sample_count = 5)]
+fn stochastic_thousand_years(bencher: divan::Bencher) {
+    let model = StochasticModel::new(&means(), &site(), StochasticSettings::default()).unwrap();
+    bencher.bench_local(|| {
+        (0..1000_u64)
+            .map(|k| model.year(11, k).hours.len())
+            .sum::<usize>()
+    });
+}
+
+#[divan::bench(sample_count = 20)]
+fn site_sun_table_and_average_days(bencher: divan::Bencher) {
+    let (site, means) = (site(), means());
+    bencher.bench_local(|| {
+        let table = stillbench::climate::SunTable::new(divan::black_box(&site)).unwrap();
+        stillbench::climate::average_days(&means, &site, &table).map(|s| s.hours.len())
+    });
+}

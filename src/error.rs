@@ -33,6 +33,15 @@ pub enum Error {
         /// Why (no convergence, energy residual …).
         reason: String,
     },
+    /// The user asked for something the tool refuses to do as asked (e.g. overwrite a file
+    /// without `--force`).
+    #[error("refusing to write {path}: {reason}")]
+    Refused {
+        /// The file involved.
+        path: String,
+        /// Why, and how to proceed.
+        reason: String,
+    },
     /// Reading or writing a file failed.
     #[error("{path}: {source}")]
     Io {
@@ -49,6 +58,7 @@ impl Error {
         match self {
             Error::Design(_) => ExitCode::BadInput,
             Error::Model { .. } => ExitCode::Untrustworthy,
+            Error::Refused { .. } => ExitCode::BadInput,
             Error::Io { .. } => ExitCode::Internal,
         }
     }

@@ -14,6 +14,7 @@ pub mod climate;
 pub mod design;
 pub mod error;
 pub mod network;
+pub mod output;
 pub mod physics;
 pub mod stills;
 

@@ -5,6 +5,7 @@ use clap::{Parser, Subcommand};
 use stillbench::ExitCode;
 
 mod check;
+mod climate;
 mod simulate;
 
 /// Design, simulate and compare solar water stills for one site and the materials a local
@@ -26,6 +27,8 @@ pub struct Cli {
 enum Command {
     /// Validate a design file and summarise what it describes.
     Check(check::CheckArgs),
+    /// Show the site's climate month by month and export hourly weather on every cover plane.
+    Climate(climate::ClimateArgs),
     /// Predict each variant's distillate month by month from a physical heat-and-mass
     /// model (with no design, the built-in demo).
     Simulate(simulate::SimulateArgs),
@@ -36,16 +39,42 @@ pub fn main() -> std::process::ExitCode {
     let cli = Cli::parse();
     let result = match cli.command {
         Command::Check(args) => check::run(&args),
+        Command::Climate(args) => climate::run(&args),
         Command::Simulate(args) => simulate::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),
+        Err(err) if is_broken_pipe(&err) => {
+            // The reader went away (e.g. `| head`): not an error of ours.
+            std::process::ExitCode::from(ExitCode::Success as u8)
+        }
         Err(err) => {
             let code = exit_code_of(&err);
             eprintln!("error: {err:#}");
             std::process::ExitCode::from(code as u8)
         }
     }
+}
+
+/// Load a design file (or the built-in demo when `path` is `None`) and print its warnings.
+fn load(path: Option<&std::path::Path>) -> anyhow::Result<stillbench::design::LoadedDesign> {
+    let loaded = match path {
+        Some(p) => stillbench::design::load_design(p),
+        None => stillbench::design::load_demo(),
+    }
+    .map_err(stillbench::Error::Design)?;
+    for w in &loaded.warnings {
+        eprintln!("warning: {w}");
+    }
+    Ok(loaded)
+}
+
+/// Whether the error is standard output closing under us.
+fn is_broken_pipe(err: &anyhow::Error) -> bool {
+    err.chain().any(|e| {
+        e.downcast_ref::<std::io::Error>()
+            .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
+    })
 }
 
 /// The exit code of an error chain: a library error decides; anything else is internal.

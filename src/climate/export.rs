@@ -147,7 +147,7 @@ beam_visible_fraction,measured_poa_w_m2";
 /// Write the hourly series as CSV (one row per record, header [`HOURLY_CSV_HEADER`]),
 /// optionally with the irradiance on planes (`poa_<name>_w_m2` columns).
 pub fn write_hourly_csv(
-    w: &mut impl Write,
+    w: &mut (impl Write + ?Sized),
     series: &WeatherSeries,
     planes: &[(String, Plane)],
     model: SkyModel,
@@ -193,7 +193,7 @@ pub fn write_hourly_csv(
 }
 
 /// Write the hourly series as a JSON array of objects with the CSV export's field names.
-pub fn write_hourly_json(w: &mut impl Write, series: &WeatherSeries) -> io::Result<()> {
+pub fn write_hourly_json(w: &mut (impl Write + ?Sized), series: &WeatherSeries) -> io::Result<()> {
     let rows: Vec<serde_json::Value> = series
         .hours
         .iter()
@@ -217,6 +217,6 @@ pub fn write_hourly_json(w: &mut impl Write, series: &WeatherSeries) -> io::Resu
             })
         })
         .collect();
-    serde_json::to_writer_pretty(&mut *w, &rows).map_err(io::Error::other)?;
+    serde_json::to_writer_pretty(&mut *w, &rows).map_err(io::Error::from)?;
     writeln!(w)
 }

@@ -45,7 +45,7 @@ pub const SENSOR_NOISE_W_M2: f64 = 10.0;
 /// (from memory).
 pub const DEFAULT_WIND_M_S: f64 = 2.0;
 
-/// Height of the wind speed in EPW files [m] (the format's convention of a standard 10 m
+/// Height of the wind speed in EPW files \[m\] (the format's convention of a standard 10 m
 /// station mast; common practice, no source).
 pub const EPW_WIND_HEIGHT_M: f64 = 10.0;
 
@@ -77,7 +77,7 @@ pub enum GapFill {
     Stop,
     /// Interpolate linearly across gaps of at most `max_gap_h` hours; longer gaps are errors.
     Linear {
-        /// Longest gap filled [h].
+        /// Longest gap filled \[h\].
         max_gap_h: f64,
     },
 }
@@ -161,7 +161,7 @@ pub struct ColumnMap {
     /// `2026-03-01 13:00`, `2026-03-01T13:00Z`). Stamps without an offset are in
     /// `utc_offset_h`.
     pub timestamp: String,
-    /// UTC offset of stamps that carry none [h]; `None` means the site's standard time.
+    /// UTC offset of stamps that carry none \[h\]; `None` means the site's standard time.
     pub utc_offset_h: Option<f64>,
     /// Global horizontal irradiance (required).
     pub ghi: Column<IrradianceUnit>,
@@ -211,7 +211,7 @@ pub struct WeatherFileSpec {
     pub columns: ColumnMap,
     /// Gap handling.
     pub gap_fill: GapFill,
-    /// Height of the wind measurement [m] (ignored for EPW: 10 m).
+    /// Height of the wind measurement \[m\] (ignored for EPW: 10 m).
     pub wind_height_m: f64,
 }
 
@@ -271,9 +271,9 @@ pub enum IssueKind {
     },
     /// Timestamps are not a whole number of steps apart.
     IrregularStep {
-        /// The usual step [min].
+        /// The usual step \[min\].
         step_min: i64,
-        /// The step found [min].
+        /// The step found \[min\].
         found_min: i64,
     },
     /// A value is missing or was rejected and could not be filled.
@@ -282,7 +282,7 @@ pub enum IssueKind {
         column: String,
         /// Consecutive periods missing.
         periods: usize,
-        /// Their duration [h].
+        /// Their duration \[h\].
         hours: f64,
     },
     /// Missing periods or values were filled by interpolation.
@@ -489,7 +489,7 @@ pub struct LoadedWeather {
     pub series: WeatherSeries,
     /// Repairs and assumptions made (never errors).
     pub warnings: Vec<WeatherIssue>,
-    /// The file's time step [h].
+    /// The file's time step \[h\].
     pub step_h: f64,
 }
 
@@ -840,6 +840,9 @@ fn parse_csv(
     })
 }
 
+/// Most records a file may expand to, counting missing periods.
+const MAX_RECORDS: usize = 10_000_000;
+
 /// Fields of an EPW data row (EnergyPlus Auxiliary Programs, "Weather Data Format").
 const EPW_FIELDS: usize = 35;
 
@@ -1057,7 +1060,9 @@ fn build_series(
                 );
             } else if d > step {
                 let missing = (d / step - 1) as usize;
-                if missing > 366 * 24 * 60 {
+                // Bound the records made for missing periods (a year of minutes per gap,
+                // ten million in all) so a corrupt stamp cannot exhaust memory.
+                if missing > 366 * 24 * 60 || full.len() + missing > MAX_RECORDS {
                     issues.error(
                         row.line,
                         IssueKind::MissingPeriods {
@@ -1403,8 +1408,10 @@ fn to_series(
             let t_dew_c = if let Some(d) = r.v[DEW] {
                 d
             } else if let Some(rh) = r.v[RH] {
-                super::dew_point_magnus_k(t_air_c + ZERO_CELSIUS_K, rh.clamp(0.01, 1.0))
-                    - ZERO_CELSIUS_K
+                crate::physics::humid_air::dew_point_k(
+                    t_air_c + ZERO_CELSIUS_K,
+                    rh.clamp(0.01, 1.0),
+                ) - ZERO_CELSIUS_K
             } else {
                 day_min.get(&g.local_day).copied().unwrap_or(t_air_c)
             };

@@ -12,12 +12,12 @@ use std::f64::consts::{FRAC_PI_2, TAU};
 /// the sun's elevation is at or below the profile's elevation at the sun's azimuth.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Horizon {
-    /// (azimuth [rad] clockwise from north in 0…2π, elevation [rad]), sorted by azimuth.
+    /// (azimuth \[rad\] clockwise from north in 0…2π, elevation \[rad\]), sorted by azimuth.
     points_rad: Vec<(f64, f64)>,
 }
 
 impl Horizon {
-    /// Build from (azimuth [deg], elevation [deg]) pairs in any order. Azimuths are wrapped
+    /// Build from (azimuth \[deg\], elevation \[deg\]) pairs in any order. Azimuths are wrapped
     /// into 0…360°; non-finite points are ignored (the site validation reports them).
     pub fn from_degrees(points_deg: &[(f64, f64)]) -> Self {
         let mut points_rad: Vec<(f64, f64)> = points_deg
@@ -39,7 +39,7 @@ impl Horizon {
         self.points_rad.is_empty()
     }
 
-    /// Obstruction elevation [rad] at an azimuth [rad] (clockwise from north).
+    /// Obstruction elevation \[rad\] at an azimuth \[rad\] (clockwise from north).
     pub fn elevation_rad_at(&self, azimuth_rad: f64) -> f64 {
         let pts = &self.points_rad;
         match pts.len() {

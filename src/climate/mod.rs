@@ -26,7 +26,7 @@ pub mod stochastic;
 mod sun_table;
 pub mod temperature;
 
-pub use file::{WeatherFileError, WeatherIssue, load_weather_file};
+pub use file::{LoadedWeather, WeatherFileError, WeatherIssue, load_weather_file};
 pub use horizon::Horizon;
 pub use monthly::{Humidity, MonthlyMeans, average_days};
 pub use stochastic::{StochasticSettings, stochastic_year};
@@ -38,17 +38,17 @@ use crate::physics::sun::SunPosition;
 /// Where the site is and what surrounds it.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SiteLocation {
-    /// Latitude [deg], north positive, within −90…90.
+    /// Latitude \[deg\], north positive, within −90…90.
     pub latitude_deg: f64,
-    /// Longitude [deg], east positive, within −180…180.
+    /// Longitude \[deg\], east positive, within −180…180.
     pub longitude_deg: f64,
-    /// Elevation above sea level [m].
+    /// Elevation above sea level \[m\].
     pub elevation_m: f64,
-    /// Offset of the site's standard (not daylight-saving) time from UTC [h], east positive.
+    /// Offset of the site's standard (not daylight-saving) time from UTC \[h\], east positive.
     pub utc_offset_h: f64,
     /// Ground albedo (solar reflectance of the foreground) [-], within 0…1.
     pub albedo: f64,
-    /// Horizon profile: (azimuth [deg] clockwise from north, obstruction elevation [deg]).
+    /// Horizon profile: (azimuth \[deg\] clockwise from north, obstruction elevation \[deg\]).
     /// Empty means a free horizon. See [`Horizon`] for the interpolation.
     pub horizon: Vec<(f64, f64)>,
 }
@@ -74,7 +74,7 @@ impl SiteLocation {
         out
     }
 
-    /// Latitude [rad].
+    /// Latitude \[rad\].
     pub fn latitude_rad(&self) -> f64 {
         self.latitude_deg.to_radians()
     }
@@ -83,9 +83,9 @@ impl SiteLocation {
 /// A flat receiving surface (a still's cover, a pyranometer).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Plane {
-    /// Tilt from horizontal [rad], 0…π/2 for a cover.
+    /// Tilt from horizontal \[rad\], 0…π/2 for a cover.
     pub tilt_rad: f64,
-    /// Azimuth the surface faces [rad], clockwise from north (π = facing south).
+    /// Azimuth the surface faces \[rad\], clockwise from north (π = facing south).
     pub azimuth_rad: f64,
 }
 
@@ -138,9 +138,9 @@ pub struct HourlyWeather {
     pub month: u32,
     /// Day of the year 1…366.
     pub day_of_year: u32,
-    /// Solar time at the middle of the period [h], 0…24.
+    /// Solar time at the middle of the period \[h\], 0…24.
     pub hour_mid_solar_h: f64,
-    /// Length of the period [h] (1 for hourly data).
+    /// Length of the period \[h\] (1 for hourly data).
     pub period_h: f64,
     /// Global horizontal irradiance, period mean [W m⁻²].
     pub ghi_w_m2: f64,
@@ -148,13 +148,13 @@ pub struct HourlyWeather {
     pub dhi_w_m2: f64,
     /// Direct normal irradiance, consistent with `ghi = dhi + dni·cos(zenith)` [W m⁻²].
     pub dni_w_m2: f64,
-    /// Air temperature [K].
+    /// Air temperature \[K\].
     pub t_air_k: f64,
-    /// Dew-point temperature [K].
+    /// Dew-point temperature \[K\].
     pub t_dew_k: f64,
     /// Wind speed at `wind_height_m` [m s⁻¹].
     pub wind_m_s: f64,
-    /// Height of the wind measurement above ground [m].
+    /// Height of the wind measurement above ground \[m\].
     pub wind_height_m: f64,
     /// Sun position used for this period: the middle of the part of the period when the sun
     /// is up (the middle of the period when it is down all period).
@@ -341,17 +341,69 @@ pub fn month_of_day(day_of_year: u32) -> u32 {
 /// Number of days in each month of a non-leap year.
 pub const DAYS_IN_MONTH: [u32; 12] = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
 
-/// Dew point [K] from air temperature [K] and relative humidity [-] (0…1], by the Magnus
-/// form with the coefficients of Alduchov & Eskridge (1996), "Improved Magnus form
-/// approximation of saturation vapor pressure", J. Appl. Meteorol. 35:601–609 (a = 17.625,
-/// b = 243.04 °C; from memory): γ = ln(RH) + aT/(b + T), T_d = bγ/(a − γ), T in °C.
-///
-/// Notes: a local helper until the humid-air module's dew point is merged; RH is clamped to
-/// 0.001…1 so the logarithm stays finite.
-pub(crate) fn dew_point_magnus_k(t_air_k: f64, rh: f64) -> f64 {
-    const A: f64 = 17.625;
-    const B_C: f64 = 243.04;
-    let t_c = t_air_k - crate::physics::constants::ZERO_CELSIUS_K;
-    let gamma = rh.clamp(0.001, 1.0).ln() + A * t_c / (B_C + t_c);
-    B_C * gamma / (A - gamma) + crate::physics::constants::ZERO_CELSIUS_K
+/// Where a site's weather comes from.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ClimateSource {
+    /// Twelve monthly means → one average day per month.
+    Monthly(Box<MonthlyMeans>),
+    /// An hourly weather file.
+    File(Box<file::WeatherFileSpec>),
+}
+
+/// Site weather ready for the later stages, with any warnings from reading it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SiteWeather {
+    /// The hourly records.
+    pub series: WeatherSeries,
+    /// Warnings (repairs, assumptions) with their lines; empty for monthly means.
+    pub warnings: Vec<WeatherIssue>,
+}
+
+/// Build the hourly weather of a site from its source.
+pub fn site_weather(
+    site: &SiteLocation,
+    source: &ClimateSource,
+) -> Result<SiteWeather, ClimateError> {
+    match source {
+        ClimateSource::Monthly(means) => {
+            let table = SunTable::new(site)?;
+            Ok(SiteWeather {
+                series: average_days(means, site, &table)?,
+                warnings: Vec::new(),
+            })
+        }
+        ClimateSource::File(spec) => {
+            let loaded = load_weather_file(spec, site)?;
+            Ok(SiteWeather {
+                series: loaded.series,
+                warnings: loaded.warnings,
+            })
+        }
+    }
+}
+
+/// Climate errors are bad input (exit code 2): each becomes a design issue naming the
+/// weather file and line, or the input field.
+impl From<ClimateError> for crate::Error {
+    fn from(e: ClimateError) -> Self {
+        use crate::design::{DesignErrors, DesignIssue};
+        let issues = match e {
+            ClimateError::BadInput { field, message } => vec![DesignIssue {
+                file: std::path::PathBuf::new(),
+                line_col: None,
+                path: field,
+                message,
+            }],
+            ClimateError::WeatherFile(w) => w
+                .errors()
+                .map(|i| DesignIssue {
+                    file: w.path.clone(),
+                    line_col: i.line.map(|l| (l, 1)),
+                    path: String::new(),
+                    message: i.kind.to_string(),
+                })
+                .collect(),
+        };
+        crate::Error::Design(DesignErrors(issues))
+    }
 }

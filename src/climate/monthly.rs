@@ -35,11 +35,11 @@ pub struct MonthlyMeans {
     pub t_min_c: [f64; 12],
     /// Monthly mean wind speed [m s⁻¹] at `wind_height_m`.
     pub wind_m_s: [f64; 12],
-    /// Height of the wind measurement above ground [m] (10 m at standard stations).
+    /// Height of the wind measurement above ground \[m\] (10 m at standard stations).
     pub wind_height_m: f64,
     /// Humidity.
     pub humidity: Humidity,
-    /// Monthly rainfall [mm], when known (carried to the reports only).
+    /// Monthly rainfall \[mm\], when known (carried to the reports only).
     pub rain_mm: Option<[f64; 12]>,
 }
 
@@ -145,7 +145,7 @@ impl MonthlyMeans {
             Humidity::Default => tn,
             Humidity::RelativePercent(rh) => {
                 let t_mean_k = 0.5 * (tx + tn) + ZERO_CELSIUS_K;
-                super::dew_point_magnus_k(t_mean_k, rh[m] / 100.0) - ZERO_CELSIUS_K
+                crate::physics::humid_air::dew_point_k(t_mean_k, rh[m] / 100.0) - ZERO_CELSIUS_K
             }
         }
     }

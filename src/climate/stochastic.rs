@@ -172,7 +172,7 @@ pub fn standard_normal_cdf(z: f64) -> f64 {
 /// * ω_s > 81.4°: 1.0 + 0.2832 k − 2.5557 k² + 0.8448 k³ for k < 0.722, else 0.175.
 ///
 /// * `kt` — daily clearness index [-]
-/// * `sunset_hour_angle_rad` — ω_s [rad]
+/// * `sunset_hour_angle_rad` — ω_s \[rad\]
 ///
 /// Notes: the result is clamped to 0…1 (the polynomials stay inside for 0 ≤ k ≤ 1).
 pub fn erbs_daily_diffuse_fraction(kt: f64, sunset_hour_angle_rad: f64) -> f64 {

@@ -9,7 +9,7 @@ use crate::physics::sun::{
 };
 use std::f64::consts::PI;
 
-/// Hour angle swept in one hour [rad] (15°).
+/// Hour angle swept in one hour \[rad\] (15°).
 const HOUR_RAD: f64 = PI / 12.0;
 
 /// 4-point Gauss–Legendre nodes and weights on −1…1 (Abramowitz & Stegun 1964, Table 25.4).
@@ -48,17 +48,17 @@ pub struct HourSun {
 pub struct DaySun {
     /// Day of the year 1…365.
     pub day_of_year: u32,
-    /// Declination (Cooper) [rad].
+    /// Declination (Cooper) \[rad\].
     pub declination_rad: f64,
-    /// Sunset hour angle [rad].
+    /// Sunset hour angle \[rad\].
     pub sunset_hour_angle_rad: f64,
     /// Daily extraterrestrial irradiation on a horizontal surface [J m⁻²].
     pub h0_j_m2: f64,
     /// Extraterrestrial normal irradiance [W m⁻²].
     pub dni_extra_w_m2: f64,
-    /// Sunrise and sunset in solar time [h].
+    /// Sunrise and sunset in solar time \[h\].
     pub sunrise_solar_h: f64,
-    /// Sunset in solar time [h].
+    /// Sunset in solar time \[h\].
     pub sunset_solar_h: f64,
     /// The 24 solar hours, hour `i` spanning solar time i…i+1 h.
     pub hours: [HourSun; 24],
@@ -97,7 +97,7 @@ impl SunTable {
         &self.days[i]
     }
 
-    /// Latitude of the site [rad].
+    /// Latitude of the site \[rad\].
     pub fn latitude_rad(&self) -> f64 {
         self.latitude_rad
     }
@@ -185,7 +185,7 @@ fn integrate_hour(f: impl Fn(f64) -> f64, lo: f64, hi: f64) -> f64 {
 /// one; this is the factor [`SunTable`] divides by so that a synthesised day reproduces its
 /// daily total.
 ///
-/// * `sunset_hour_angle_rad` — ω_s [rad], 0…π
+/// * `sunset_hour_angle_rad` — ω_s \[rad\], 0…π
 pub fn cpr_raw_daily_sum(sunset_hour_angle_rad: f64) -> f64 {
     let ws = sunset_hour_angle_rad;
     (0..24)

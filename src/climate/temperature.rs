@@ -19,9 +19,9 @@ pub const CESARACCIO_MAX_BEFORE_SUNSET_H: f64 = 4.0;
 ///   T_0 = T_x − c·(T_x − T_p), c = 0.39;
 /// * sunset → next sunrise (`t_r + 24`): T = T_0 + (T_p − T_0)·√((t − t_s)/(t_r + 24 − t_s)).
 ///
-/// * `time_h` — local (solar) time [h], within `sunrise_h … sunrise_h + 24`; earlier times
+/// * `time_h` — local (solar) time \[h\], within `sunrise_h … sunrise_h + 24`; earlier times
 ///   are shifted by +24 h (the previous night's curve with the same extremes)
-/// * `sunrise_h`, `sunset_h` — sunrise and sunset [h], sunrise < sunset
+/// * `sunrise_h`, `sunset_h` — sunrise and sunset \[h\], sunrise < sunset
 /// * `t_min_c`, `t_max_c` — the day's minimum (at sunrise) and maximum [°C]
 /// * `t_min_next_c` — the next day's minimum [°C]
 ///
@@ -59,7 +59,7 @@ pub fn cesaraccio_air_temperature_c(
 }
 
 /// Sunrise and sunset [h solar time] to use in the temperature profile for a sunset hour
-/// angle [rad]. The day length is held within 4…20 h so that near-polar days keep a
+/// angle \[rad\]. The day length is held within 4…20 h so that near-polar days keep a
 /// recognisable curve (common practice, no source).
 pub fn profile_sun_times_h(sunset_hour_angle_rad: f64) -> (f64, f64) {
     let half_day_h = sunset_hour_angle_rad.to_degrees() / 15.0;

@@ -13,6 +13,7 @@
 use std::fmt;
 use std::path::{Path, PathBuf};
 
+mod climate_inputs;
 mod library;
 mod parse;
 mod reader;
@@ -21,6 +22,7 @@ pub mod spans;
 mod summary;
 mod validate;
 
+pub use climate_inputs::EPW_WIND_HEIGHT_M;
 pub use library::{
     Condensate, CoverProps, InsulationProps, Item, Library, LibraryHeader, PlateProps, ROLE_NAMES,
     Role, Stock, SurfaceProps, Unit, WickProps,

@@ -349,8 +349,10 @@ fn read_climate(
         let m: MonthlyFields = r.read(&value, path, &["source"])?;
         validate::monthly(r, m).map(Climate::Monthly)
     } else {
-        let w: WeatherFile = r.read(&value, path, &["source"])?;
+        let mut w: WeatherFile = r.read(&value, path, &["source"])?;
         validate::weather_file(r, &w, base_dir, files);
+        // From here on the path is usable from any working directory.
+        w.path = base_dir.join(&w.path);
         Some(Climate::WeatherFile(w))
     }
 }

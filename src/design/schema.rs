@@ -238,6 +238,10 @@ pub struct WeatherFile {
     /// Longest gap `linear` may fill [h], (0, 48]; default 3.
     #[serde(default = "default_max_gap")]
     pub max_gap_h: f64,
+    /// Height of the wind measurement above ground [m], (0.5, 100]; default 10 (CSV; EPW
+    /// files are 10 m by convention).
+    #[serde(default = "default_wind_height")]
+    pub wind_height_m: f64,
 }
 
 fn default_max_gap() -> f64 {
@@ -294,14 +298,25 @@ pub struct Columns {
     pub dni_w_m2: Option<String>,
     /// Air temperature [°C] (required for CSV).
     pub t_air_c: String,
-    /// Wind speed [m/s] (required for CSV).
-    pub wind_m_s: String,
+    /// Wind speed [m/s]; without it the climate module's documented default is used.
+    #[serde(default)]
+    pub wind_m_s: Option<String>,
     /// Relative humidity [%].
     #[serde(default)]
     pub rh_percent: Option<String>,
+    /// Dew point [°C] (used instead of relative humidity when both are given).
+    #[serde(default)]
+    pub dew_point_c: Option<String>,
     /// Measured plane-of-array irradiance [W/m²].
     #[serde(default)]
     pub poa_w_m2: Option<String>,
+    /// Tilt of the plane the `poa_w_m2` pyranometer was mounted in [deg], [0, 90]; required
+    /// with `poa_w_m2`.
+    #[serde(default)]
+    pub poa_tilt_deg: Option<f64>,
+    /// Azimuth of that plane, clockwise from north [deg], [0, 360); required with `poa_w_m2`.
+    #[serde(default)]
+    pub poa_azimuth_deg: Option<f64>,
 }
 
 /// One still variant: what every kind has, plus its kind-specific record.

@@ -422,15 +422,59 @@ pub(crate) fn weather_file(
         (WeatherFormat::Csv, None) => r.error(
             &format!("{p}.columns"),
             "required for format = \"csv\": [site.climate.columns] with at least timestamp, \
-             ghi_w_m2, t_air_c and wind_m_s"
+             ghi_w_m2 and t_air_c"
                 .to_string(),
         ),
         (WeatherFormat::Epw, Some(_)) => r.warn(
             &format!("{p}.columns"),
             "ignored for format = \"epw\" (the format fixes its columns)".to_string(),
         ),
+        (WeatherFormat::Csv, Some(c)) => {
+            let q = format!("{p}.columns");
+            match (&c.poa_w_m2, c.poa_tilt_deg, c.poa_azimuth_deg) {
+                (Some(_), Some(tilt), Some(az)) => {
+                    range(
+                        r,
+                        &format!("{q}.poa_tilt_deg"),
+                        tilt,
+                        B::In(0.0),
+                        B::In(90.0),
+                        "deg",
+                    );
+                    range(
+                        r,
+                        &format!("{q}.poa_azimuth_deg"),
+                        az,
+                        B::In(0.0),
+                        B::Ex(360.0),
+                        "deg",
+                    );
+                }
+                (Some(_), _, _) => r.error(
+                    &format!("{q}.poa_w_m2"),
+                    "a measured plane-of-array column needs the plane it was measured in: \
+                     poa_tilt_deg [0, 90] and poa_azimuth_deg [0, 360)"
+                        .to_string(),
+                ),
+                (None, Some(_), _) | (None, _, Some(_)) => r.error(
+                    &format!("{q}.poa_tilt_deg"),
+                    "poa_tilt_deg and poa_azimuth_deg describe the poa_w_m2 column; give that \
+                     column too or remove them"
+                        .to_string(),
+                ),
+                (None, None, None) => {}
+            }
+        }
         _ => {}
     }
+    range(
+        r,
+        &format!("{p}.wind_height_m"),
+        w.wind_height_m,
+        B::Ex(0.5),
+        B::In(100.0),
+        "m",
+    );
     range(
         r,
         &format!("{p}.max_gap_h"),

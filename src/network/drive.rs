@@ -1,6 +1,6 @@
 //! Adaptive time stepping over an interval, with the energy balance booked on the way.
 
-use super::balance::{BalanceError, EnergyBalance};
+use super::balance::{BalanceError, EnergyBalance, MAX_BALANCE_RESIDUAL_FRACTION};
 use super::build::{Network, NetworkError};
 use super::solver::{FailReason, Solver, SolverSettings, StepEvent, StepOutcome, StepRecord};
 use super::state::{Inputs, State};
@@ -169,6 +169,12 @@ impl<'n> Simulation<'n> {
     /// The energy balance so far.
     pub fn balance(&self) -> &EnergyBalance {
         &self.balance
+    }
+    /// The energy balance so far, or an error if its residual exceeds the product's bound
+    /// [`MAX_BALANCE_RESIDUAL_FRACTION`] of the absorbed sunlight.
+    pub fn checked_balance(&self) -> Result<&EnergyBalance, BalanceError> {
+        self.balance.check(MAX_BALANCE_RESIDUAL_FRACTION)?;
+        Ok(&self.balance)
     }
     /// The record of the latest accepted step.
     pub fn last_record(&self) -> &StepRecord {

@@ -40,7 +40,7 @@
 //!     StepControl::default()).unwrap();
 //! sim.advance(&inputs, 3600.0).unwrap();
 //! assert!(sim.balance().distillate_kg > 0.0);
-//! sim.balance().check(1e-3).unwrap();
+//! sim.checked_balance().unwrap();
 //! ```
 
 mod balance;
@@ -50,7 +50,7 @@ mod models;
 mod solver;
 mod state;
 
-pub use balance::{BalanceError, EnergyBalance};
+pub use balance::{BalanceError, EnergyBalance, MAX_BALANCE_RESIDUAL_FRACTION};
 pub use build::{
     BoundaryId, End, Link, LinkId, LinkKind, LossPath, Network, NetworkBuilder, NetworkError, Node,
     NodeId,
@@ -59,8 +59,7 @@ pub use drive::{AdvanceError, AdvanceSummary, Simulation, StepControl};
 pub use models::{
     ConductanceModel, CorrelationEnclosure, DUNKLE_LEWIS_FACTOR_K_PA, EnclosureFlux,
     EnclosureModel, FixedCoefficientEnclosure, LinkFlow, PowerLawConductance, SALT_SATURATION_G_KG,
-    SeawaterProperties, SimpleWater, WaterProperties, malik_saturation_pressure_derivative_pa_k,
-    malik_saturation_pressure_pa, nayar_vapour_pressure_ratio,
+    SeawaterProperties, SimpleWater, WaterProperties,
 };
 pub use solver::{
     FailReason, LinkRecord, NodeRecord, Solver, SolverSettings, StepEvent, StepOutcome, StepRecord,

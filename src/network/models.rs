@@ -193,36 +193,6 @@ pub trait WaterProperties: Debug + Send + Sync {
     }
 }
 
-/// Malik–Tiwari saturation pressure p = exp(25.317 − 5144/T) [Pa], T in kelvin.
-///
-/// Malik, Tiwari, Kumar & Sodha, *Solar Distillation* (Pergamon, 1982), the expression paired
-/// with Dunkle's relations (from memory, REFERENCES.md §1 [M]).
-///
-/// * `t_k` — temperature [K], meaningful 283–363 K
-///
-/// Notes: the original is written with T = t + 273; we use the kelvin temperature as given.
-/// It reads about 3 % below IAPWS-IF97 at 50–60 °C (REFERENCES.md §1).
-pub fn malik_saturation_pressure_pa(t_k: f64) -> f64 {
-    (25.317 - 5144.0 / t_k).exp()
-}
-
-/// Derivative of [`malik_saturation_pressure_pa`] [Pa K⁻¹] at `t_k` [K].
-pub fn malik_saturation_pressure_derivative_pa_k(t_k: f64) -> f64 {
-    malik_saturation_pressure_pa(t_k) * 5144.0 / (t_k * t_k)
-}
-
-/// Vapour-pressure lowering of seawater, p_sw/p_w = exp(−4.5818e−4·S − 2.0443e−6·S²).
-///
-/// Nayar, Sharqawy, Banchik & Lienhard (2016), Desalination 390:1–24 (REFERENCES.md §5).
-///
-/// * `salinity_g_kg` — absolute salinity S [g kg⁻¹], 0–120
-///
-/// Returns the ratio [-].
-pub fn nayar_vapour_pressure_ratio(salinity_g_kg: f64) -> f64 {
-    let s = salinity_g_kg;
-    (-4.5818e-4 * s - 2.0443e-6 * s * s).exp()
-}
-
 /// A compact property set for the network: Malik–Tiwari saturation pressure, Nayar's
 /// seawater lowering, constant liquid heat capacity and a latent heat linear in temperature.
 ///
@@ -262,13 +232,15 @@ const TRIPLE_POINT_K: f64 = 273.16;
 
 impl WaterProperties for SimpleWater {
     fn saturation_pressure_pa(&self, t_k: f64) -> f64 {
-        malik_saturation_pressure_pa(t_k)
+        crate::physics::water::saturation_pressure_tiwari_pa(t_k)
     }
     fn saturation_pressure_derivative_pa_k(&self, t_k: f64) -> f64 {
-        malik_saturation_pressure_derivative_pa_k(t_k)
+        crate::physics::water::saturation_pressure_tiwari_derivative_pa_k(t_k)
     }
     fn vapour_pressure_ratio(&self, salinity_g_kg: f64) -> f64 {
-        nayar_vapour_pressure_ratio(salinity_g_kg.clamp(0.0, SALT_SATURATION_G_KG))
+        crate::physics::seawater::vapour_pressure_ratio(
+            salinity_g_kg.clamp(0.0, SALT_SATURATION_G_KG),
+        )
     }
     fn liquid_enthalpy_j_kg(&self, t_k: f64) -> f64 {
         self.cp_liquid_j_kg_k * (t_k - TRIPLE_POINT_K)
@@ -374,13 +346,6 @@ mod tests {
     use super::*;
 
     #[test]
-    fn nayar_ratio_at_35_g_kg() {
-        // REFERENCES.md §5 [C], Nayar et al. (2016): S = 35 g/kg → 0.98163; 5e-5 is the
-        // rounding of the published figure.
-        assert!((nayar_vapour_pressure_ratio(35.0) - 0.98163).abs() < 5e-5);
-    }
-
-    #[test]
     fn latent_heat_fit_against_iapws95() {
         // REFERENCES.md §5 [C] (IAPWS-95 via CoolProp): 50 °C → 2381.95 kJ/kg, 25 °C → 2441.68.
         // A linear fit; 0.1 % is its stated accuracy over 20–60 °C.
@@ -389,16 +354,6 @@ mod tests {
             let h = w.latent_heat_j_kg(273.15 + t_c) / 1e3;
             assert!((h / h_kj - 1.0).abs() < 1e-3, "{t_c} °C: {h}");
         }
-    }
-
-    #[test]
-    fn malik_pressure_three_percent_below_if97() {
-        // REFERENCES.md §1: the Malik–Tiwari expression reads ≈ 3 % below IAPWS-IF97 at
-        // 50–60 °C. IF97 at 60 °C: 19945.8 Pa [C] (iapws 1.5.5, IAPWS97(T=333.15, x=0).P).
-        // Window 1–5 % below.
-        let p = malik_saturation_pressure_pa(333.15);
-        let ratio = p / 19_945.8;
-        assert!(ratio > 0.95 && ratio < 0.99, "ratio {ratio}");
     }
 
     #[test]

@@ -229,6 +229,8 @@ pub struct NodeRecord {
 pub struct StepRecord {
     /// Step length [s] (∞ for a steady-state step).
     pub dt_s: f64,
+    /// Change of stored energy over the step, from the states at its start and end [J].
+    pub stored_change_j: f64,
     /// Per link, in link order.
     pub links: Vec<LinkRecord>,
     /// Per node, in node order.
@@ -240,6 +242,7 @@ impl StepRecord {
     pub fn new(net: &Network) -> Self {
         StepRecord {
             dt_s: 0.0,
+            stored_change_j: 0.0,
             links: vec![LinkRecord::default(); net.links.len()],
             nodes: vec![NodeRecord::default(); net.nodes.len()],
         }
@@ -274,6 +277,8 @@ impl StepRecord {
 struct StepConsts {
     t0: Vec<f64>,
     m0: Vec<f64>,
+    /// Net mass flow into each node at the converged state [kg s⁻¹] (filled after Newton).
+    inflow: Vec<f64>,
     wet: Vec<bool>,
     p_ratio: Vec<f64>,
 }
@@ -314,6 +319,7 @@ impl<'n> Solver<'n> {
             consts: StepConsts {
                 t0: vec![0.0; n],
                 m0: vec![0.0; n],
+                inflow: vec![0.0; n],
                 wet: vec![false; n],
                 p_ratio: vec![1.0; n],
             },
@@ -439,11 +445,13 @@ impl<'n> Solver<'n> {
         };
         let net = self.net;
         let n = net.nodes.len();
+        let energy_before_j = net.stored_energy_j(state);
         if record.links.len() != net.links.len() || record.nodes.len() != n {
             *record = StepRecord::new(net);
         }
         fill_record(net, &self.consts, &self.ws.t, inputs, record);
         record.dt_s = dt_s;
+        net_inflows_kg_s(net, record, &mut self.consts.inflow);
 
         if dt_s.is_finite() {
             // Mass update from the converged flows; stop at a dry-out instead of stepping
@@ -489,6 +497,7 @@ impl<'n> Solver<'n> {
             record.nodes[i].temperature_change_k = self.ws.t[i] - self.consts.t0[i];
         }
         state.t_k.copy_from_slice(&self.ws.t);
+        record.stored_change_j = net.stored_energy_j(state) - energy_before_j;
         StepOutcome::Converged { iterations }
     }
 
@@ -506,7 +515,7 @@ impl<'n> Solver<'n> {
         let m0 = self.consts.m0[i];
         let salt0 = state.salt_kg[i];
         let nr = &record.nodes[i];
-        let m1 = m0 + dt_s * net_inflow_kg_s(self.net, record, i);
+        let m1 = m0 + dt_s * self.consts.inflow[i];
         let salt1 = salt0
             + dt_s
                 * (nr.feed_kg_s * inputs.feed_salinity_g_kg[i]
@@ -959,16 +968,15 @@ fn fill_record(net: &Network, c: &StepConsts, t: &[f64], inputs: &Inputs, rec: &
     }
 }
 
-/// Net mass flow into water node `i` [kg s⁻¹]: feed − drain − evaporation + drip-back.
-pub(crate) fn net_inflow_kg_s(net: &Network, rec: &StepRecord, i: usize) -> f64 {
-    let nr = &rec.nodes[i];
-    let mut flow = nr.feed_kg_s - nr.drain_kg_s;
+/// Net mass flow into every node [kg s⁻¹]: feed − drain − evaporation + drip-back
+/// (zero for nodes without water).
+fn net_inflows_kg_s(net: &Network, rec: &StepRecord, inflow: &mut [f64]) {
+    for (f, nr) in inflow.iter_mut().zip(&rec.nodes) {
+        *f = nr.feed_kg_s - nr.drain_kg_s;
+    }
     for (link, lr) in net.links.iter().zip(&rec.links) {
-        if let (LinkKind::Enclosure { .. }, End::Node(w)) = (&link.kind, link.a)
-            && w.0 == i
-        {
-            flow += lr.dripback_kg_s - lr.evaporation_kg_s;
+        if let (LinkKind::Enclosure { .. }, End::Node(w)) = (&link.kind, link.a) {
+            inflow[w.0] += lr.dripback_kg_s - lr.evaporation_kg_s;
         }
     }
-    flow
 }

@@ -196,6 +196,13 @@ fn lumped_body_adaptive_driver_matches_exponential() {
         (bal.stored_j + bal.loss_j(LossPath::Other)).abs() < 1e-6 * bal.stored_j.abs(),
         "{bal:?}"
     );
+    // The last step's record carries its own stored-energy change: C·ΔT of that step.
+    let rec = sim.last_record();
+    let expect = 10_000.0 * rec.nodes[0].temperature_change_k;
+    assert!((rec.stored_change_j - expect).abs() < 1e-6 * expect.abs().max(1.0));
+    // The lumped body absorbs no sunlight, so the checked balance compares the residual
+    // with the largest term; it closes.
+    assert!(sim.checked_balance().is_ok());
 }
 
 #[test]
