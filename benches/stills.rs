@@ -67,7 +67,7 @@ fn one_solver_step(bencher: divan::Bencher) {
     let i = 3 * 24 + 12;
     let ctx = HourContext {
         weather: &w.series.hours[i],
-        poa: &poa[i],
+        poa: std::slice::from_ref(&poa[i]),
         ground_k: w.month_mean_air_k[3],
         dew_point_known: w.dew_point_known,
         feed_salinity_g_kg: w.feed_salinity_g_kg,
@@ -96,13 +96,11 @@ fn one_year_hourly(bencher: divan::Bencher) {
     let model = stills::build_model(&loaded, v, &year)
         .expect("builds")
         .expect("single-slope is modelled");
-    let plane = Plane::from_degrees(v.cover_tilt_deg(), v.cover_azimuth_deg);
     bencher.bench_local(|| {
         let r = stills::run_model(
             model.as_ref(),
             &v.name,
             "single-slope",
-            plane,
             &year,
             &RunOptions::default(),
         )

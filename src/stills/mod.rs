@@ -50,8 +50,9 @@ pub const DEFAULT_MAX_CHANGE_K: f64 = 2.0;
 pub struct HourContext<'a> {
     /// The weather record.
     pub weather: &'a HourlyWeather,
-    /// Irradiance on the (main) cover plane, per m² of cover.
-    pub poa: &'a PlaneIrradiance,
+    /// Irradiance on each of the model's cover planes, per m² of cover, in the order of
+    /// [`StillModel::planes`] (one entry for most kinds, two for a double slope).
+    pub poa: &'a [PlaneIrradiance],
     /// Ground temperature \[K\] (the month's mean air temperature).
     pub ground_k: f64,
     /// Whether the dew point comes from data.
@@ -64,8 +65,17 @@ pub struct HourContext<'a> {
 pub trait StillModel {
     /// The network.
     fn network(&self) -> &Network;
-    /// The water node whose evaporation makes the distillate.
+    /// The planes that admit sunlight, each with its cover area \[m²\]; the driver transposes
+    /// the weather onto each once per run and hands the results over in [`HourContext::poa`].
+    fn planes(&self) -> Vec<(Plane, f64)>;
+    /// The water node reported as "brine" (the hottest evaporating surface: the basin brine,
+    /// the wick, or a multi-effect still's first stage).
     fn brine_node(&self) -> NodeId;
+    /// Every water node (brine, wick film, stage wicks); each starts a simulated day at the
+    /// feed salinity.
+    fn water_nodes(&self) -> Vec<NodeId> {
+        vec![self.brine_node()]
+    }
     /// The (main) cover node.
     fn cover_node(&self) -> NodeId;
     /// The basin liner or absorber node, if any.
@@ -357,15 +367,28 @@ pub fn simulate_variant(
         at: String::new(),
         reason: format!("the {} kind is not modelled yet", variant.kind.name()),
     })?;
-    let plane = Plane::from_degrees(variant.cover_tilt_deg(), variant.cover_azimuth_deg);
     run_model(
         model.as_ref(),
         &variant.name,
         variant.kind.name(),
-        plane,
         weather,
         opts,
     )
+}
+
+/// Irradiance on every plane of `model` for every weather record: `rows[record][plane]`.
+fn plane_irradiance_rows(
+    model: &dyn StillModel,
+    weather: &SiteWeather,
+) -> Vec<Vec<PlaneIrradiance>> {
+    let per_plane: Vec<Vec<PlaneIrradiance>> = model
+        .planes()
+        .iter()
+        .map(|(plane, _)| weather.series.plane_series(*plane, SkyModel::HayDavies))
+        .collect();
+    (0..weather.series.hours.len())
+        .map(|i| per_plane.iter().map(|series| series[i]).collect())
+        .collect()
 }
 
 /// Per-day totals.
@@ -402,7 +425,7 @@ fn run_day(
     model: &dyn StillModel,
     name: &str,
     records: &[HourlyWeather],
-    poa: &[PlaneIrradiance],
+    poa: &[Vec<PlaneIrradiance>],
     weather: &SiteWeather,
     state: State,
     inputs: &mut Inputs,
@@ -413,10 +436,14 @@ fn run_day(
     let cover = model.cover_node();
     let mut state = state;
     let month = records.first().map_or(1, |r| r.month);
-    let m_brine = state.brine_kg(brine).unwrap_or(0.0);
-    state
-        .set_brine(net, brine, m_brine, weather.feed_salinity_g_kg)
-        .map_err(|e| model_error(name, month, None, e.to_string()))?;
+    for node in model.water_nodes() {
+        let m_water = state.brine_kg(node).unwrap_or(0.0);
+        state
+            .set_brine(net, node, m_water, weather.feed_salinity_g_kg)
+            .map_err(|e| model_error(name, month, None, e.to_string()))?;
+    }
+    let plane_areas: Vec<f64> = model.planes().iter().map(|(_, a)| *a).collect();
+    let total_area: f64 = plane_areas.iter().sum::<f64>().max(f64::MIN_POSITIVE);
     let mut sim = Simulation::new(net, state, opts.settings, opts.control)
         .map_err(|e| model_error(name, month, None, e.to_string()))?;
     let mut t = DayTotals::default();
@@ -451,7 +478,13 @@ fn run_day(
         t.incident_j += split.incident_w * dt_s;
         t.entering_j += split.entering_w * dt_s;
         t.ghi_j_m2 += rec.ghi_w_m2.max(0.0) * dt_s;
-        t.poa_j_m2 += p.total_w_m2() * dt_s;
+        let poa_w_m2 = p
+            .iter()
+            .zip(&plane_areas)
+            .map(|(g, a)| g.total_w_m2() * a)
+            .sum::<f64>()
+            / total_area;
+        t.poa_j_m2 += poa_w_m2 * dt_s;
         t.distillate_kg += d_kg;
         t.distillate_latent_j += d_kg * water::latent_heat_j_kg(t_brine);
         if split.entering_w <= 0.0 {
@@ -541,20 +574,19 @@ fn month_result(
     }
 }
 
-/// Run a built model over the site's weather on the cover plane `plane`.
+/// Run a built model over the site's weather on its cover planes.
 ///
-/// The plane-of-array irradiance (Hay–Davies) of every record is computed once before the
-/// run.
+/// The plane-of-array irradiance (Hay–Davies) of every record on every plane is computed
+/// once before the run.
 pub fn run_model(
     model: &dyn StillModel,
     name: &str,
     kind: &str,
-    plane: Plane,
     weather: &SiteWeather,
     opts: &RunOptions,
 ) -> Result<VariantResult, Error> {
     let net = model.network();
-    let poa = weather.series.plane_series(plane, SkyModel::HayDavies);
+    let poa = plane_irradiance_rows(model, weather);
     let hours = &weather.series.hours;
     let mut inputs = net
         .inputs(weather.month_mean_air_k[0])
@@ -722,7 +754,6 @@ fn finish(
 pub fn run_single_day(
     model: &dyn StillModel,
     name: &str,
-    plane: Plane,
     weather: &SiteWeather,
     month: u32,
     opts: &RunOptions,
@@ -745,10 +776,21 @@ pub fn run_single_day(
         .find(|&i| hours[i].day_of_year != first_day)
         .unwrap_or(b + 1);
     let recs = &hours[a..end];
-    let poa: Vec<PlaneIrradiance> = recs
+    let planes = model.planes();
+    let poa: Vec<Vec<PlaneIrradiance>> = recs
         .iter()
         .map(|h| {
-            crate::climate::plane_irradiance(h, plane, weather.series.albedo, SkyModel::HayDavies)
+            planes
+                .iter()
+                .map(|(plane, _)| {
+                    crate::climate::plane_irradiance(
+                        h,
+                        *plane,
+                        weather.series.albedo,
+                        SkyModel::HayDavies,
+                    )
+                })
+                .collect()
         })
         .collect();
     let t0 = weather.month_mean_air_k[(month - 1) as usize];

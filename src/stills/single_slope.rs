@@ -10,6 +10,7 @@ use std::sync::Arc;
 
 use super::sunlight::{Enclosure, OpticsSwitches, StillOptics, SunlightSplit};
 use super::{HourContext, KindDetails, StillModel};
+use crate::climate::Plane;
 use crate::design::{
     BasinKind, Condensate, InternalCorrelation as DesignCorrelation, Layer, Library, LossSwitches,
     SingleSlope, Variant,
@@ -81,6 +82,7 @@ pub struct SingleSlopeStill {
     cover_area_m2: f64,
     footprint_m2: f64,
     tilt_rad: f64,
+    plane: Plane,
     cover_height_m: f64,
     plate_length_m: f64,
     set_brine_kg: f64,
@@ -351,6 +353,7 @@ impl SingleSlopeStill {
             cover_area_m2: cover_area,
             footprint_m2: footprint,
             tilt_rad: tilt,
+            plane: Plane::from_degrees(k.cover_tilt_deg, variant.cover_azimuth_deg),
             cover_height_m: (0.5 * (k.front_wall_mm + back_wall_mm) / 1000.0)
                 .max(MIN_COVER_HEIGHT_M),
             plate_length_m: cover_area / (2.0 * (w / tilt.cos() + l)),
@@ -447,6 +450,10 @@ impl StillModel for SingleSlopeStill {
         self.cover_area_m2
     }
 
+    fn planes(&self) -> Vec<(Plane, f64)> {
+        vec![(self.plane, self.cover_area_m2)]
+    }
+
     fn evaporating_m2(&self) -> f64 {
         self.footprint_m2
     }
@@ -489,7 +496,7 @@ impl StillModel for SingleSlopeStill {
         for &(id, area) in &self.side_links {
             inputs.set_conductance_w_k(net, id, u_side * area)?;
         }
-        let split = self.optics.split(ctx.poa, h.sun);
+        let split = self.optics.split(&ctx.poa[0], h.sun);
         inputs.set_source_w(net, self.cover, split.cover_w)?;
         inputs.set_source_w(net, self.brine, split.brine_w)?;
         inputs.set_source_w(net, self.liner, split.liner_w)?;

@@ -7,7 +7,6 @@
 use std::path::{Path, PathBuf};
 
 use proptest::prelude::*;
-use stillbench::climate::Plane;
 use stillbench::design::{self, LoadedDesign};
 use stillbench::network::StepControl;
 use stillbench::stills::{self, RunOptions, VariantResult};
@@ -293,8 +292,7 @@ proptest! {
         let w = stills::site_weather(&loaded).unwrap();
         let v = &loaded.design.variants[0];
         let model = stills::build_model(&loaded, v, &w).unwrap().unwrap();
-        let plane = Plane::from_degrees(v.cover_tilt_deg(), v.cover_azimuth_deg);
-        let m = stills::run_single_day(model.as_ref(), "p", plane, &w, month, &RunOptions::default()).unwrap();
+        let m = stills::run_single_day(model.as_ref(), "p", &w, month, &RunOptions::default()).unwrap();
         prop_assert!(m.energy.residual_fraction < 1e-3, "residual {}", m.energy.residual_fraction);
         for x in [m.l_m2_day, m.efficiency, m.max_brine_c, m.max_cover_c, m.night_share, m.cover_insolation_kwh_m2_day] {
             prop_assert!(x.is_finite() && x >= 0.0, "{x}");
