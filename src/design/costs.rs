@@ -115,6 +115,9 @@ pub struct PartItems {
     /// Stage spacers of a multi-effect still (role `structure`, per m); default
     /// `aluminium-angle`.
     pub spacer: String,
+    /// Fins of an air-cooled multi-effect sink (role `structure`, per m²); default
+    /// `aluminium-sheet`.
+    pub fin: String,
 }
 
 impl Default for PartItems {
@@ -131,6 +134,7 @@ impl Default for PartItems {
             bottle: "hdpe-jerrycan".into(),
             glazing_bar: "aluminium-glazing-bar".into(),
             spacer: "aluminium-angle".into(),
+            fin: "aluminium-sheet".into(),
         }
     }
 }
