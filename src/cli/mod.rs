@@ -6,6 +6,7 @@ use stillbench::ExitCode;
 
 mod check;
 mod climate;
+mod cost;
 
 /// Design, simulate and compare solar water stills for one site and the materials a local
 /// workshop can get.
@@ -28,6 +29,8 @@ enum Command {
     Check(check::CheckArgs),
     /// Show the site's climate month by month and export hourly weather on every cover plane.
     Climate(climate::ClimateArgs),
+    /// Bill of materials, cut list, build complexity and cost per litre of each variant.
+    Cost(cost::CostArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -36,6 +39,7 @@ pub fn main() -> std::process::ExitCode {
     let result = match cli.command {
         Command::Check(args) => check::run(&args),
         Command::Climate(args) => climate::run(&args),
+        Command::Cost(args) => cost::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),
