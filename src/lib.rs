@@ -12,6 +12,7 @@
 
 pub mod climate;
 pub mod design;
+pub mod economics;
 pub mod error;
 pub mod network;
 pub mod output;

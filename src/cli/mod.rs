@@ -6,6 +6,7 @@ use stillbench::ExitCode;
 
 mod check;
 mod climate;
+mod cost;
 mod simulate;
 
 /// Design, simulate and compare solar water stills for one site and the materials a local
@@ -32,6 +33,8 @@ enum Command {
     /// Predict each variant's distillate month by month from a physical heat-and-mass
     /// model (with no design, the built-in demo).
     Simulate(simulate::SimulateArgs),
+    /// Bill of materials, cut list, build complexity and cost per litre of each variant.
+    Cost(cost::CostArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -41,6 +44,7 @@ pub fn main() -> std::process::ExitCode {
         Command::Check(args) => check::run(&args),
         Command::Climate(args) => climate::run(&args),
         Command::Simulate(args) => simulate::run(&args),
+        Command::Cost(args) => cost::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),

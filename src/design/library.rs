@@ -112,6 +112,14 @@ pub struct Stock {
     pub width_m: Option<f64>,
     /// Length [m], (0, 1000].
     pub length_m: f64,
+    /// Board or sheet thickness [mm], (0, 500]; lets an item priced per m² supply a volume
+    /// (insulation board). Optional.
+    #[serde(default)]
+    pub thickness_mm: Option<f64>,
+    /// Sold off a roll by the metre (film, cloth, liner): only the length used is bought.
+    /// Default false (whole sheets or bars are bought).
+    #[serde(default)]
+    pub roll: bool,
 }
 
 /// One item on sale.
@@ -144,6 +152,22 @@ pub struct Item {
     /// Safe in contact with drinking water; default false.
     #[serde(default)]
     pub food_grade: bool,
+    /// Skills needed to work the item (e.g. `glass cutting`, `carpentry`). Optional.
+    #[serde(default)]
+    pub skills: Vec<String>,
+    /// Tools needed to work the item (e.g. `glass cutter`, `saw`). Optional.
+    #[serde(default)]
+    pub tools: Vec<String>,
+    /// Volume of one piece [L], (0, 1000] (e.g. a sealant cartridge). Optional.
+    #[serde(default)]
+    pub content_l: Option<f64>,
+    /// Area one litre covers in one coat [m² L⁻¹], (0, 1000] (paint). Optional.
+    #[serde(default)]
+    pub coverage_m2_l: Option<f64>,
+    /// Why the item must not touch vapour or distillate, when it must not (shown with the
+    /// food-safety flag). Optional.
+    #[serde(default)]
+    pub taint: Option<String>,
     /// `[item.cover]`, required for role `cover`.
     #[serde(default)]
     pub cover: Option<CoverProps>,

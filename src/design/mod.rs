@@ -14,6 +14,7 @@ use std::fmt;
 use std::path::{Path, PathBuf};
 
 mod climate_inputs;
+mod costs;
 mod library;
 mod parse;
 mod reader;
@@ -23,6 +24,7 @@ mod summary;
 mod validate;
 
 pub use climate_inputs::EPW_WIND_HEIGHT_M;
+pub use costs::{ComplexityWeights, Costs, LabourRates, PartItems, Substitutes};
 pub use library::{
     Condensate, CoverProps, InsulationProps, Item, Library, LibraryHeader, PlateProps, ROLE_NAMES,
     Role, Stock, SurfaceProps, Unit, WickProps,

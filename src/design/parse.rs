@@ -35,7 +35,7 @@ impl Files for Disk {
 }
 
 /// The top-level keys of a design file.
-const ROOT_FIELDS: [&str; 4] = ["project", "materials", "site", "variant"];
+const ROOT_FIELDS: [&str; 5] = ["project", "materials", "site", "variant", "costs"];
 
 /// The type of a value with its article, for messages ("an integer", "a table").
 fn a_type(v: &DeValue<'_>) -> String {
@@ -95,6 +95,13 @@ pub(crate) fn parse_design(
     let (materials_path, library) = read_materials(&mut r, root, base_dir, files);
     let site = read_site(&mut r, root, base_dir, files);
     let variants = read_variants(&mut r, root);
+    let costs: Option<super::costs::Costs> = match root.get("costs") {
+        Some(v) => r.read(v, "costs", &[]),
+        None => Some(super::costs::Costs::default()),
+    };
+    if let Some(c) = &costs {
+        super::costs::validate(&mut r, c);
+    }
 
     if let Some(p) = &project {
         validate::project(&mut r, p, library.as_ref().map(|(l, _)| l));
@@ -109,23 +116,27 @@ pub(crate) fn parse_design(
         Some((l, p)) => (Some(l), p),
         None => (None, PathBuf::new()),
     };
-    match (project, materials_path, site, variants, library) {
-        (Some(project), Some(materials), Some(site), Some(variants), Some(library))
-            if issues.is_empty() =>
-        {
-            Ok(LoadedDesign {
-                design: Design {
-                    project,
-                    materials,
-                    site,
-                    variants,
-                },
-                library,
-                source: origin.to_path_buf(),
-                library_path,
-                warnings,
-            })
-        }
+    match (project, materials_path, site, variants, library, costs) {
+        (
+            Some(project),
+            Some(materials),
+            Some(site),
+            Some(variants),
+            Some(library),
+            Some(costs),
+        ) if issues.is_empty() => Ok(LoadedDesign {
+            design: Design {
+                project,
+                materials,
+                site,
+                variants,
+                costs,
+            },
+            library,
+            source: origin.to_path_buf(),
+            library_path,
+            warnings,
+        }),
         _ => {
             if issues.is_empty() {
                 // Every branch that yields `None` records an issue first; keep a guard so an

@@ -29,6 +29,8 @@ pub struct Design {
     pub site: Site,
     /// `[[variant]]` in file order.
     pub variants: Vec<Variant>,
+    /// `[costs]` (optional; every field has a default).
+    pub costs: super::costs::Costs,
 }
 
 /// `[project]`.

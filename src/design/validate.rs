@@ -975,7 +975,31 @@ pub(crate) fn library(r: &mut Reader<'_>, lib: &Library) {
                 B::In(1000.0),
                 "m",
             );
+            opt_range(
+                r,
+                &format!("{sp}.thickness_mm"),
+                s.thickness_mm,
+                B::Ex(0.0),
+                B::In(500.0),
+                "mm",
+            );
         }
+        opt_range(
+            r,
+            &format!("{p}.content_l"),
+            it.content_l,
+            B::Ex(0.0),
+            B::In(1000.0),
+            "L",
+        );
+        opt_range(
+            r,
+            &format!("{p}.coverage_m2_l"),
+            it.coverage_m2_l,
+            B::Ex(0.0),
+            B::In(1000.0),
+            "m2/L",
+        );
         item_properties(r, &p, it);
     }
 }

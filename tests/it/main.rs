@@ -3,6 +3,7 @@
 mod cli;
 mod climate;
 mod design;
+mod economics;
 mod network;
 mod physics_sun;
 mod physics_transfer;

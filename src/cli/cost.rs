@@ -1,0 +1,364 @@
+//! `stillbench cost [DESIGN] [--variant NAME] [--format text|json|csv] [--substitutes]`: bill
+//! of materials, cut list, build complexity and cost summary of each variant.
+
+use std::io::Write;
+use std::path::PathBuf;
+
+use anyhow::Context;
+use stillbench::design::{DesignErrors, DesignIssue, LoadedDesign, Variant};
+use stillbench::economics::{self, SubstituteRun, VariantCost, YieldEstimate};
+
+/// Output formats.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum Format {
+    /// Plain text for reading.
+    Text,
+    /// JSON, one object per variant.
+    Json,
+    /// CSV of the bill of materials.
+    Csv,
+}
+
+/// Arguments of `cost`.
+#[derive(Debug, clap::Args)]
+#[command(
+    after_help = "Examples:\n  stillbench cost designs/demo-coast.toml\n  \
+    stillbench cost designs/demo-coast.toml --variant glass-basin --format csv\n  \
+    stillbench cost designs/demo-coast.toml --substitutes"
+)]
+pub struct CostArgs {
+    /// The design file (TOML). Without it, the built-in demo design is costed.
+    pub design: Option<PathBuf>,
+    /// Cost only this variant.
+    #[arg(long)]
+    pub variant: Option<String>,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+    /// Re-cost each variant with every locally sold substitute listed in [costs.substitutes].
+    #[arg(long)]
+    pub substitutes: bool,
+}
+
+/// The yield of a variant from the simulation. The still model is not on this branch yet, so
+/// no yield is invented: every kind reports "not modelled yet".
+fn simulated_yield(_v: &Variant) -> Option<YieldEstimate> {
+    None
+}
+
+/// Run `cost`.
+pub fn run(args: &CostArgs) -> anyhow::Result<()> {
+    let loaded = super::load(args.design.as_deref())?;
+    let indices = select(&loaded, args.variant.as_deref())?;
+    let mut out = std::io::stdout().lock();
+    let mut reports = Vec::new();
+    for i in indices {
+        if args.substitutes {
+            let (base, runs) = economics::substitutes(&loaded, i, &simulated_yield)
+                .map_err(stillbench::Error::Design)?;
+            reports.push((base, runs));
+        } else {
+            let y = loaded.design.variants.get(i).and_then(simulated_yield);
+            let r = economics::cost_variant(&loaded, i, y.as_ref())
+                .map_err(stillbench::Error::Design)?;
+            reports.push((r, Vec::new()));
+        }
+    }
+    match args.format {
+        Format::Text => {
+            for (r, subs) in &reports {
+                write_text(&mut out, r, subs, args.substitutes)?;
+            }
+        }
+        Format::Json => {
+            let v: Vec<serde_json::Value> = reports
+                .iter()
+                .map(|(r, subs)| serde_json::json!({ "cost": r, "substitutes": subs }))
+                .collect();
+            serde_json::to_writer_pretty(&mut out, &v).context("writing JSON")?;
+            writeln!(out)?;
+        }
+        Format::Csv => write_csv(&mut out, &reports)?,
+    }
+    Ok(())
+}
+
+fn select(loaded: &LoadedDesign, name: Option<&str>) -> anyhow::Result<Vec<usize>> {
+    let all = &loaded.design.variants;
+    match name {
+        None => Ok((0..all.len()).collect()),
+        Some(n) => match all.iter().position(|v| v.name == n) {
+            Some(i) => Ok(vec![i]),
+            None => {
+                let names: Vec<&str> = all.iter().map(|v| v.name.as_str()).collect();
+                Err(stillbench::Error::Design(DesignErrors(vec![DesignIssue {
+                    file: loaded.source.clone(),
+                    line_col: None,
+                    path: "--variant".into(),
+                    message: format!("no variant named \"{n}\"; variants: {}", names.join(", ")),
+                }]))
+                .into())
+            }
+        },
+    }
+}
+
+fn opt(v: Option<f64>, digits: usize) -> String {
+    v.map_or_else(|| "–".to_string(), |x| format!("{x:.digits$}"))
+}
+
+/// Write one variant's report as text.
+pub fn write_text(
+    out: &mut impl Write,
+    r: &VariantCost,
+    subs: &[SubstituteRun],
+    show_subs: bool,
+) -> std::io::Result<()> {
+    let cur = &r.cost.currency;
+    writeln!(
+        out,
+        "== {} ({}) — footprint {:.2} m², cover {:.2} m²",
+        r.variant, r.kind, r.footprint_m2, r.cover_area_m2
+    )?;
+    writeln!(out, "\nBill of materials ({cur}):")?;
+    for l in &r.bom.lines {
+        let (g, gu) = l.amount.value_unit();
+        writeln!(
+            out,
+            "  {:<28} {:<24} {:>9.3} {:<6} × {:>8.2} = {:>9.2}{}",
+            l.part,
+            l.item,
+            l.quantity,
+            l.unit,
+            l.unit_price,
+            l.cost,
+            if l.local { "" } else { "  [NOT LOCAL]" }
+        )?;
+        writeln!(
+            out,
+            "      {g:.3} {gu} from {}; {}",
+            l.formula, l.conversion
+        )?;
+    }
+    writeln!(out, "  materials total {:.2} {cur}", r.bom.materials_cost())?;
+    if !r.bom.unavailable.is_empty() {
+        writeln!(out, "\nNot sold locally (costed with import):")?;
+        for u in &r.bom.unavailable {
+            writeln!(
+                out,
+                "  {} for the {}: lead time {} days, import adds {:.2} {cur}",
+                u.item,
+                u.part,
+                opt(u.lead_time_days, 0),
+                u.import_extra
+            )?;
+        }
+    }
+    if !r.bom.food_safety.is_empty() {
+        writeln!(out, "\nFood safety:")?;
+        for f in &r.bom.food_safety {
+            writeln!(
+                out,
+                "  FLAG {} ({}, touches {:?}): {}",
+                f.item, f.part, f.contact, f.reason
+            )?;
+        }
+    }
+    writeln!(out, "\nCut list:")?;
+    for c in &r.bom.cuts {
+        if let Some(p) = &c.sheets {
+            writeln!(
+                out,
+                "  {} on {}: {} sheet(s), parts {:.3} m², bought {:.3} m², waste {:.3} m² ({:.0} %)",
+                c.part,
+                c.item,
+                p.sheets.len(),
+                p.parts_m2,
+                p.stock_m2,
+                p.waste_m2,
+                p.waste_fraction() * 100.0
+            )?;
+            for (k, s) in p.sheets.iter().enumerate() {
+                let parts: Vec<String> = s
+                    .placements
+                    .iter()
+                    .map(|pl| format!("{} {:.3}×{:.3}", pl.label, pl.across_m, pl.along_m))
+                    .collect();
+                writeln!(
+                    out,
+                    "    sheet {} ({:.2}×{:.2} m{}): {}",
+                    k + 1,
+                    s.width_m,
+                    s.length_m,
+                    if s.roll { " off the roll" } else { "" },
+                    parts.join(", ")
+                )?;
+            }
+        }
+        if let Some(b) = &c.bars {
+            writeln!(
+                out,
+                "  {} on {}: {} bar(s), pieces {:.3} m, bought {:.3} m, waste {:.3} m",
+                c.part,
+                c.item,
+                b.bars.len(),
+                b.pieces_m,
+                b.stock_m,
+                b.waste_m
+            )?;
+        }
+    }
+    writeln!(
+        out,
+        "  methods: sheets — {}; bars — {}",
+        economics::cutlist::SHEET_METHOD,
+        economics::cutlist::BAR_METHOD
+    )?;
+    for s in &r.bom.splits {
+        writeln!(
+            out,
+            "  {} split {}×{} with glazing bars: {:.3} m of bar, shading {:.3} m²",
+            s.pane, s.split.across_a, s.split.across_b, s.split.bar_m, s.split.shaded_m2
+        )?;
+    }
+    let cx = &r.complexity;
+    writeln!(out, "\nBuild complexity: score {:.1}", cx.score)?;
+    for t in &cx.terms {
+        writeln!(
+            out,
+            "  {:<42} {:>7.1} × {:>4.1} = {:>6.1}",
+            t.what, t.count, t.weight, t.points
+        )?;
+    }
+    writeln!(out, "  skills: {}", cx.skills.join(", "))?;
+    writeln!(out, "  tools: {}", cx.tools.join(", "))?;
+    for t in &cx.tolerances {
+        writeln!(out, "  tolerance — {}: {}", t.name, t.value)?;
+    }
+    writeln!(out, "\nBuild steps:")?;
+    for (k, s) in r.steps.iter().enumerate() {
+        writeln!(out, "  {}. {s}", k + 1)?;
+    }
+    let c = &r.cost;
+    writeln!(out, "\nCost summary ({cur}):")?;
+    writeln!(
+        out,
+        "  materials {:.2} + labour {:.1} h = {:.2}",
+        c.materials, c.labour_h, c.labour_cost
+    )?;
+    writeln!(
+        out,
+        "  capital {:.2} ({:.2} per m² of footprint)",
+        c.capital, c.capital_per_m2
+    )?;
+    for rep in &c.replacements {
+        writeln!(
+            out,
+            "  replace {} ({}) every {:.0} y: {} time(s) at {:.2}, present worth {:.2}",
+            rep.part, rep.item, rep.lifetime_years, rep.count, rep.cost_each, rep.present_worth
+        )?;
+    }
+    writeln!(
+        out,
+        "  operator {:.0} h/year; upkeep {:.2}/year; salvage {:.2}",
+        c.operator_h_per_year, c.upkeep_per_year, c.salvage
+    )?;
+    writeln!(
+        out,
+        "  life {:.0} y at {:.1} %: CRF {:.5}, SFF {:.5}; annualised {:.2}/year",
+        c.life_years,
+        c.discount_rate * 100.0,
+        c.crf,
+        c.sff,
+        c.annualised
+    )?;
+    writeln!(
+        out,
+        "  yield loss {:.1} %/year",
+        c.yield_loss_per_year * 100.0
+    )?;
+    match &c.yield_note {
+        Some(note) => writeln!(out, "  cost per litre: {note}")?,
+        None => writeln!(
+            out,
+            "  first-year {} L, levelised {} L/year: {} {cur}/L, {} {cur} per person per year",
+            opt(c.first_year_litres, 0),
+            opt(c.levelised_litres, 0),
+            opt(c.cost_per_litre, 4),
+            opt(c.cost_per_person_year, 2)
+        )?,
+    }
+    if show_subs {
+        writeln!(
+            out,
+            "\nSubstitutes (locally sold, from [costs.substitutes]):"
+        )?;
+        if subs.is_empty() {
+            writeln!(out, "  none listed for the roles this variant uses")?;
+        }
+        for s in subs {
+            writeln!(
+                out,
+                "  {} {} → {}: capital {:+.2}, annualised {:+.2}/year, life {:.0} → {:.0} y{}{}",
+                s.role,
+                s.replaces,
+                s.item,
+                s.capital_change,
+                s.annualised_change,
+                s.replaced_lifetime_years,
+                s.lifetime_years,
+                s.cover_transmittance_change
+                    .map_or(String::new(), |d| format!(", normal transmittance {d:+.3}")),
+                match (&s.note, s.yield_change_litres) {
+                    (Some(n), _) => format!("; yield: {n}"),
+                    (None, Some(d)) => format!("; yield {d:+.0} L/year"),
+                    _ => String::new(),
+                }
+            )?;
+            for f in &s.food_safety {
+                writeln!(out, "      FLAG {f}")?;
+            }
+        }
+    }
+    writeln!(out)?;
+    Ok(())
+}
+
+fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+fn write_csv(
+    out: &mut impl Write,
+    reports: &[(VariantCost, Vec<SubstituteRun>)],
+) -> anyhow::Result<()> {
+    writeln!(
+        out,
+        "variant,part,item,formula,geometric,geometric_unit,quantity,unit,unit_price,cost,local,lifetime_years"
+    )?;
+    for (r, _) in reports {
+        for l in &r.bom.lines {
+            let (g, gu) = l.amount.value_unit();
+            writeln!(
+                out,
+                "{},{},{},{},{g},{},{},{},{},{},{},{}",
+                csv_field(&r.variant),
+                csv_field(&l.part),
+                csv_field(&l.item),
+                csv_field(&l.formula),
+                csv_field(gu),
+                l.quantity,
+                l.unit,
+                l.unit_price,
+                l.cost,
+                l.local,
+                l.lifetime_years
+            )?;
+        }
+    }
+    Ok(())
+}
