@@ -61,6 +61,23 @@ pub struct HourContext<'a> {
     pub feed_salinity_g_kg: f64,
 }
 
+/// The basin of a basin-type still (single-slope, double-slope, stepped): the water node the
+/// operator feeds, its plan area and its set depth. The driver, not the variant, decides when
+/// and how much feed flows in.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Basin {
+    /// The brine node.
+    pub node: NodeId,
+    /// Free-surface (plan) area of the brine \[m²\].
+    pub area_m2: f64,
+    /// Brine mass at the set depth \[kg\].
+    pub set_kg: f64,
+}
+
+/// Solar hour at which a basin is topped up to its set depth \[h\] (08:00 solar time; the feed
+/// flows during the hour that starts then). Common practice, no source.
+pub const TOP_UP_SOLAR_HOUR: f64 = 8.0;
+
 /// A still variant as the driver sees it.
 pub trait StillModel {
     /// The network.
@@ -71,6 +88,11 @@ pub trait StillModel {
     /// The water node reported as "brine" (the hottest evaporating surface: the basin brine,
     /// the wick, or a multi-effect still's first stage).
     fn brine_node(&self) -> NodeId;
+    /// The basin the operator keeps topped up, for basin-type stills; `None` for stills fed by
+    /// a continuous flow (wick, multi-effect), which set their own feed in `hour_inputs`.
+    fn basin(&self) -> Option<Basin> {
+        None
+    }
     /// Every water node (brine, wick film, stage wicks); each starts a simulated day at the
     /// feed salinity.
     fn water_nodes(&self) -> Vec<NodeId> {
@@ -376,6 +398,26 @@ pub fn simulate_variant(
     )
 }
 
+/// Feed for the hour of `rec`: during the hour that starts at [`TOP_UP_SOLAR_HOUR`] the basin is
+/// filled back to its set mass with feed water at air temperature; no feed otherwise.
+fn top_up(
+    net: &Network,
+    basin: &Basin,
+    rec: &HourlyWeather,
+    state: &State,
+    inputs: &mut Inputs,
+    feed_salinity_g_kg: f64,
+) -> Result<(), NetworkError> {
+    let start = rec.hour_mid_solar_h - 0.5 * rec.period_h;
+    let feed_kg_s = if (start - TOP_UP_SOLAR_HOUR).abs() < 0.5 * rec.period_h {
+        let now = state.brine_kg(basin.node).unwrap_or(0.0);
+        (basin.set_kg - now).max(0.0) / (rec.period_h * 3600.0)
+    } else {
+        0.0
+    };
+    inputs.set_feed(net, basin.node, feed_kg_s, rec.t_air_k, feed_salinity_g_kg)
+}
+
 /// Irradiance on every plane of `model` for every weather record: `rows[record][plane]`.
 fn plane_irradiance_rows(
     model: &dyn StillModel,
@@ -461,6 +503,17 @@ fn run_day(
         let split = model
             .hour_inputs(&ctx, sim.state(), inputs)
             .map_err(|e| hour_err(e.to_string()))?;
+        if let Some(basin) = model.basin() {
+            top_up(
+                net,
+                &basin,
+                rec,
+                sim.state(),
+                inputs,
+                weather.feed_salinity_g_kg,
+            )
+            .map_err(|e| hour_err(e.to_string()))?;
+        }
         let before = sim.balance().clone();
         let dt_s = rec.period_h * 3600.0;
         sim.advance(inputs, dt_s)

@@ -9,7 +9,7 @@
 use std::sync::Arc;
 
 use super::sunlight::{Enclosure, OpticsSwitches, StillOptics, SunlightSplit};
-use super::{HourContext, KindDetails, StillModel};
+use super::{Basin, HourContext, KindDetails, StillModel};
 use crate::climate::Plane;
 use crate::design::{
     BasinKind, Condensate, InternalCorrelation as DesignCorrelation, Layer, Library, LossSwitches,
@@ -60,9 +60,6 @@ pub const SITE_ROUGHNESS_M: f64 = 0.03;
 /// Lowest height at which the wind on the cover is evaluated \[m\] (common practice, no
 /// source: a still stands on a low plinth).
 pub const MIN_COVER_HEIGHT_M: f64 = 0.3;
-/// Solar hour at which the basin is topped up to its set depth \[h\] (08:00 solar time; the
-/// feed flows for the following hour). Common practice, no source.
-pub const TOP_UP_SOLAR_HOUR: f64 = 8.0;
 
 /// A single-slope basin still, built and ready to run.
 #[derive(Debug, Clone)]
@@ -450,6 +447,14 @@ impl StillModel for SingleSlopeStill {
         self.cover_area_m2
     }
 
+    fn basin(&self) -> Option<Basin> {
+        Some(Basin {
+            node: self.brine,
+            area_m2: self.footprint_m2,
+            set_kg: self.set_brine_kg,
+        })
+    }
+
     fn planes(&self) -> Vec<(Plane, f64)> {
         vec![(self.plane, self.cover_area_m2)]
     }
@@ -503,15 +508,6 @@ impl StillModel for SingleSlopeStill {
         if let Some(wn) = self.walls {
             inputs.set_source_w(net, wn, split.walls_w)?;
         }
-        let start = h.hour_mid_solar_h - 0.5 * h.period_h;
-        let top_up = (start - TOP_UP_SOLAR_HOUR).abs() < 0.5 * h.period_h;
-        let feed_kg_s = if top_up {
-            let now = state.brine_kg(self.brine).unwrap_or(0.0);
-            (self.set_brine_kg - now).max(0.0) / (h.period_h * 3600.0)
-        } else {
-            0.0
-        };
-        inputs.set_feed(net, self.brine, feed_kg_s, t_air, ctx.feed_salinity_g_kg)?;
         Ok(split)
     }
 }
