@@ -7,6 +7,7 @@ use std::path::PathBuf;
 use anyhow::Context;
 use stillbench::design::{DesignErrors, DesignIssue, LoadedDesign, Variant};
 use stillbench::economics::{self, SubstituteRun, VariantCost, YieldEstimate};
+use stillbench::stills;
 
 /// Output formats.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
@@ -40,25 +41,44 @@ pub struct CostArgs {
     pub substitutes: bool,
 }
 
-/// The yield of a variant from the simulation. The still model is not on this branch yet, so
-/// no yield is invented: every kind reports "not modelled yet".
-fn simulated_yield(_v: &Variant) -> Option<YieldEstimate> {
-    None
+/// The yield of a variant from the simulation, or `None` (with a note on standard error) for
+/// a kind not modelled yet or a run that could not give a trustworthy result: no yield is ever
+/// invented.
+fn simulated_yield(
+    loaded: &LoadedDesign,
+    weather: &stills::SiteWeather,
+    v: &Variant,
+) -> Option<YieldEstimate> {
+    if !stills::is_modelled(&v.kind) {
+        return None;
+    }
+    match stills::simulate_variant(loaded, v, weather, &stills::RunOptions::default()) {
+        Ok(r) => Some(YieldEstimate::from_simulation(
+            &r,
+            loaded.design.costs.commissioning_kwh_m2_day,
+        )),
+        Err(e) => {
+            eprintln!("note: no yield for `{}`: {e}", v.name);
+            None
+        }
+    }
 }
 
 /// Run `cost`.
 pub fn run(args: &CostArgs) -> anyhow::Result<()> {
     let loaded = super::load(args.design.as_deref())?;
     let indices = select(&loaded, args.variant.as_deref())?;
+    let weather = stills::site_weather(&loaded)?;
+    let yield_of = |v: &Variant| simulated_yield(&loaded, &weather, v);
     let mut out = std::io::stdout().lock();
     let mut reports = Vec::new();
     for i in indices {
         if args.substitutes {
-            let (base, runs) = economics::substitutes(&loaded, i, &simulated_yield)
-                .map_err(stillbench::Error::Design)?;
+            let (base, runs) =
+                economics::substitutes(&loaded, i, &yield_of).map_err(stillbench::Error::Design)?;
             reports.push((base, runs));
         } else {
-            let y = loaded.design.variants.get(i).and_then(simulated_yield);
+            let y = loaded.design.variants.get(i).and_then(yield_of);
             let r = economics::cost_variant(&loaded, i, y.as_ref())
                 .map_err(stillbench::Error::Design)?;
             reports.push((r, Vec::new()));

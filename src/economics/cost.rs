@@ -24,6 +24,42 @@ pub struct YieldEstimate {
     pub clear_day_litres: Option<(f64, f64)>,
 }
 
+/// Half-width of the commissioning range around the model's figure, as a fraction (±15 %):
+/// the spread between a model and one measured day of a new still. Common practice, no
+/// source; to be replaced by the model-form uncertainty from validation.
+pub const COMMISSIONING_BAND: f64 = 0.15;
+
+impl YieldEstimate {
+    /// The yield figures the cost needs, from a simulation result.
+    ///
+    /// The commissioning day: the model's litres per kWh m⁻² of plane-of-array irradiation in
+    /// the month whose mean cover irradiation is nearest to `cover_kwh_m2_day`, times that
+    /// irradiation, ± [`COMMISSIONING_BAND`]. A linear scaling over a small step in
+    /// irradiation; the daily efficiency of a basin changes slowly with irradiation.
+    pub fn from_simulation(r: &crate::stills::VariantResult, cover_kwh_m2_day: f64) -> Self {
+        let nearest = r
+            .months
+            .iter()
+            .filter(|m| m.poa_kwh_m2_day > 0.0)
+            .min_by(|a, b| {
+                (a.poa_kwh_m2_day - cover_kwh_m2_day)
+                    .abs()
+                    .total_cmp(&(b.poa_kwh_m2_day - cover_kwh_m2_day).abs())
+            });
+        let clear_day_litres = nearest.map(|m| {
+            let litres = m.l_day / m.poa_kwh_m2_day * cover_kwh_m2_day;
+            (
+                litres * (1.0 - COMMISSIONING_BAND),
+                litres * (1.0 + COMMISSIONING_BAND),
+            )
+        });
+        YieldEstimate {
+            annual_litres: r.annual_l,
+            clear_day_litres,
+        }
+    }
+}
+
 /// One replaced part over the life.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Replacement {

@@ -8,7 +8,9 @@
 
 use std::sync::Arc;
 
-use super::sunlight::{Enclosure, OpticsSwitches, StillOptics, SunlightSplit};
+use super::sunlight::{
+    Enclosure, OpticsSwitches, StillOptics, SunlightSplit, condensate_collection_factor,
+};
 use super::{Basin, HourContext, KindDetails, StillModel};
 use crate::climate::Plane;
 use crate::design::{
@@ -245,6 +247,7 @@ impl SingleSlopeStill {
             }),
             if sw.drip_back {
                 k.collection_efficiency
+                    * condensate_collection_factor(cover.condensate == Condensate::Drops)
             } else {
                 1.0
             },

@@ -133,6 +133,14 @@ pub fn condensate_transmittance(drops: bool) -> f64 {
     if drops { 0.85 } else { 0.97 }
 }
 
+/// Share of the condensate that still reaches the trough when it forms drops rather than a
+/// film [-]: drops on a non-wetting (most plastic) cover grow until they fall back into the
+/// basin instead of running down to the trough, on top of the design's collection efficiency.
+/// Common practice, no source (0.85); a wetting film runs off and loses nothing extra (1.0).
+pub fn condensate_collection_factor(drops: bool) -> f64 {
+    if drops { 0.85 } else { 1.0 }
+}
+
 /// Which optional optical loss paths apply.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct OpticsSwitches {
