@@ -176,6 +176,14 @@ pub trait WaterProperties: Debug + Send + Sync {
     fn saturation_pressure_pa(&self, t_k: f64) -> f64;
     /// d p_sat / dT [Pa K⁻¹] at `t_k` [K].
     fn saturation_pressure_derivative_pa_k(&self, t_k: f64) -> f64;
+    /// Both of the above at once, (p [Pa], dp/dT [Pa K⁻¹]); override where one evaluation
+    /// gives both more cheaply.
+    fn saturation_pressure_with_derivative(&self, t_k: f64) -> (f64, f64) {
+        (
+            self.saturation_pressure_pa(t_k),
+            self.saturation_pressure_derivative_pa_k(t_k),
+        )
+    }
     /// Vapour pressure over brine ÷ over pure water at the same temperature [-], salinity
     /// `salinity_g_kg` [g kg⁻¹].
     fn vapour_pressure_ratio(&self, salinity_g_kg: f64) -> f64;
@@ -277,6 +285,9 @@ impl WaterProperties for SeawaterProperties {
     }
     fn saturation_pressure_derivative_pa_k(&self, t_k: f64) -> f64 {
         water::saturation_pressure_derivative_pa_k(t_k)
+    }
+    fn saturation_pressure_with_derivative(&self, t_k: f64) -> (f64, f64) {
+        water::saturation_pressure_with_derivative(t_k)
     }
     fn vapour_pressure_ratio(&self, salinity_g_kg: f64) -> f64 {
         seawater::vapour_pressure_ratio(salinity_g_kg.clamp(0.0, SALT_SATURATION_G_KG))

@@ -751,10 +751,9 @@ fn enclosure_flows(
 ) -> EnclosureFlows {
     let water = net.water.as_ref();
     let ratio = c.p_ratio[w];
-    let p_hot = ratio * water.saturation_pressure_pa(tw);
-    let dp_hot = ratio * water.saturation_pressure_derivative_pa_k(tw);
-    let p_cold = water.saturation_pressure_pa(tc);
-    let dp_cold = water.saturation_pressure_derivative_pa_k(tc);
+    let (p_w, dp_w) = water.saturation_pressure_with_derivative(tw);
+    let (p_hot, dp_hot) = (ratio * p_w, ratio * dp_w);
+    let (p_cold, dp_cold) = water.saturation_pressure_with_derivative(tc);
     let fl = model.transfer(tw, tc, p_hot, dp_hot, p_cold, dp_cold);
     let q_conv = fl.q_convective_w_m2 * area_m2;
     let (dqc_w, dqc_c) = (

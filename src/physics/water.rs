@@ -38,6 +38,7 @@ pub const TRIPLE_POINT_K: f64 = 273.16;
 pub const CRITICAL_TEMPERATURE_K: f64 = 647.096;
 
 /// The IF97 region-4 quadratic coefficients A, B, C (Eq. 29b), their θ-derivatives and dθ/dT.
+#[derive(Clone, Copy)]
 struct Region4Terms {
     dtheta_dt: f64,
     a: f64,
@@ -90,6 +91,34 @@ pub fn saturation_pressure_pa(t_k: f64) -> f64 {
     x.powi(4) * 1.0e6
 }
 
+/// [`saturation_pressure_pa`] and [`saturation_pressure_derivative_pa_k`] from one evaluation
+/// of the IF97 region-4 terms — (p_sat [Pa], dp_sat/dT [Pa K⁻¹]); the thermal-network solver
+/// needs both in every Newton iteration.
+pub fn saturation_pressure_with_derivative(t_k: f64) -> (f64, f64) {
+    let terms = if97_region4_terms(t_k);
+    let (x, dx_dt) = region4_x_and_slope(&terms);
+    (x.powi(4) * 1.0e6, 4.0 * x.powi(3) * dx_dt * 1.0e6)
+}
+
+/// x = p^(1/4) of IF97 Eq. (30) and its temperature slope dx/dT [MPa^(1/4) K⁻¹].
+fn region4_x_and_slope(terms: &Region4Terms) -> (f64, f64) {
+    let Region4Terms {
+        dtheta_dt,
+        a,
+        b,
+        c,
+        da,
+        db,
+        dc,
+    } = *terms;
+    let root = (b * b - 4.0 * a * c).sqrt();
+    let droot = (b * db - 2.0 * (da * c + a * dc)) / root;
+    let den = -b + root;
+    let x = 2.0 * c / den;
+    let dx_dtheta = (2.0 * dc * den - 2.0 * c * (-db + droot)) / (den * den);
+    (x, dx_dtheta * dtheta_dt)
+}
+
 /// Analytic derivative dp_sat/dT of [`saturation_pressure_pa`] [Pa K⁻¹].
 ///
 /// Differentiates IAPWS R7-97(2012) Eqs. (29)–(30) in closed form (chain rule through
@@ -99,21 +128,7 @@ pub fn saturation_pressure_pa(t_k: f64) -> f64 {
 ///
 /// Returns dp_sat/dT [Pa K⁻¹].
 pub fn saturation_pressure_derivative_pa_k(t_k: f64) -> f64 {
-    let Region4Terms {
-        dtheta_dt,
-        a,
-        b,
-        c,
-        da,
-        db,
-        dc,
-    } = if97_region4_terms(t_k);
-    let root = (b * b - 4.0 * a * c).sqrt();
-    let droot = (b * db - 2.0 * (da * c + a * dc)) / root;
-    let den = -b + root;
-    let x = 2.0 * c / den;
-    let dx_dtheta = (2.0 * dc * den - 2.0 * c * (-db + droot)) / (den * den);
-    4.0 * x.powi(3) * dx_dtheta * dtheta_dt * 1.0e6
+    saturation_pressure_with_derivative(t_k).1
 }
 
 /// Saturation temperature of pure water (the backward equation).
