@@ -3,7 +3,8 @@
 //! the default accuracy (the one that passes the 1 % step-refinement test).
 //!
 //! Run with `cargo bench --bench stills`. Targets (issue 4): a step under 2 µs, a year
-//! under 100 ms.
+//! under 100 ms. Issue 5 adds the wick still and a 10-stage multi-effect still (target: a
+//! step under 10 µs).
 
 use stillbench::climate::{Plane, SkyModel, WeatherSeries, WeatherSource};
 use stillbench::design;
@@ -107,4 +108,99 @@ fn one_year_hourly(bencher: divan::Bencher) {
         .expect("a year runs");
         divan::black_box(r.annual_l)
     });
+}
+
+/// The demo site with one extra variant (`variant` is its TOML body after `[[variant]]`).
+fn demo_with(variant: &str) -> (design::LoadedDesign, SiteWeather) {
+    let demo = design::DEMO_DESIGN;
+    let head = &demo[..demo.find("[[variant]]").expect("the demo has variants")];
+    let text = format!("{head}[[variant]]\n{variant}\n");
+    let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("designs");
+    let loaded = design::parse_design_str(&text, std::path::Path::new("bench.toml"), &dir)
+        .expect("the bench design loads");
+    let w = stills::site_weather(&loaded).expect("the weather builds");
+    (loaded, w)
+}
+
+const WICK: &str = "name = \"wick\"\nkind = \"wick\"\nwidth_m = 0.9\nlength_m = 2.0\n\
+    cover_azimuth_deg = 180\ncover = \"window-glass-3mm\"\ncover_tilt_deg = 20\ngap_mm = 30\n\
+    cloth = \"jute-cloth\"\nfeed_l_h_m2 = 0.8";
+
+const TEN_STAGES: &str = "name = \"stack\"\nkind = \"multi-effect\"\nwidth_m = 0.5\nlength_m = 0.5\n\
+    cover_azimuth_deg = 180\ncover = \"window-glass-3mm\"\nglazing_tilt_deg = 0\nstages = 10\n\
+    gap_mm = 3\nplate = \"aluminium-plate\"\nabsorber = \"black-paint\"\n\
+    wick_cloth = \"cotton-cloth\"\nsink = \"water-body\"\nfeed_l_h_m2 = 0.5";
+
+fn bench_step(bencher: divan::Bencher, variant: &str) {
+    let (loaded, w) = demo_with(variant);
+    let v = &loaded.design.variants[0];
+    let model = stills::build_model(&loaded, v, &w)
+        .expect("builds")
+        .expect("the kind is modelled");
+    let net = model.network();
+    let plane = Plane::from_degrees(v.cover_tilt_deg(), v.cover_azimuth_deg);
+    let poa = w.series.plane_series(plane, SkyModel::HayDavies);
+    // April, 12:00–13:00 solar time.
+    let i = 3 * 24 + 12;
+    let ctx = HourContext {
+        weather: &w.series.hours[i],
+        poa: std::slice::from_ref(&poa[i]),
+        ground_k: w.month_mean_air_k[3],
+        dew_point_known: w.dew_point_known,
+        feed_salinity_g_kg: w.feed_salinity_g_kg,
+    };
+    let start = model
+        .initial_state(320.0, w.feed_salinity_g_kg)
+        .expect("state");
+    let mut inputs = net.inputs(300.0).expect("inputs");
+    model
+        .hour_inputs(&ctx, &start, &mut inputs)
+        .expect("hour inputs");
+    let mut solver = Solver::new(net, SolverSettings::default()).expect("solver");
+    let mut record = StepRecord::new(net);
+    bencher.bench_local(|| {
+        let mut s = start.clone();
+        let out = solver.step(&mut s, &inputs, 60.0, &mut record);
+        divan::black_box((out, s))
+    });
+}
+
+fn bench_year(bencher: divan::Bencher, variant: &str) {
+    let (loaded, w) = demo_with(variant);
+    let year = year_of(&w);
+    let v = &loaded.design.variants[0];
+    let model = stills::build_model(&loaded, v, &year)
+        .expect("builds")
+        .expect("the kind is modelled");
+    bencher.bench_local(|| {
+        let r = stills::run_model(
+            model.as_ref(),
+            &v.name,
+            v.kind.name(),
+            &year,
+            &RunOptions::default(),
+        )
+        .expect("a year runs");
+        divan::black_box(r.annual_l)
+    });
+}
+
+#[divan::bench]
+fn wick_one_solver_step(bencher: divan::Bencher) {
+    bench_step(bencher, WICK);
+}
+
+#[divan::bench(sample_count = 10)]
+fn wick_one_year_hourly(bencher: divan::Bencher) {
+    bench_year(bencher, WICK);
+}
+
+#[divan::bench]
+fn multi_effect_10_stages_one_solver_step(bencher: divan::Bencher) {
+    bench_step(bencher, TEN_STAGES);
+}
+
+#[divan::bench(sample_count = 10)]
+fn multi_effect_10_stages_one_year_hourly(bencher: divan::Bencher) {
+    bench_year(bencher, TEN_STAGES);
 }

@@ -76,6 +76,11 @@ pub struct EnergyBalance {
     pub duration_s: f64,
     /// Steps booked.
     pub steps: u64,
+    /// Heat carried by each link from its end `a` toward its end `b`, in link order [J] (for
+    /// an enclosure, convective plus evaporative).
+    pub link_heat_j: Vec<f64>,
+    /// Distillate collected by each link, in link order [kg] (0 except for enclosures).
+    pub link_collected_kg: Vec<f64>,
     start_energy_j: f64,
 }
 
@@ -98,6 +103,8 @@ impl EnergyBalance {
             drained_kg: 0.0,
             duration_s: 0.0,
             steps: 0,
+            link_heat_j: vec![0.0; net.links().len()],
+            link_collected_kg: vec![0.0; net.links().len()],
             start_energy_j: net.stored_energy_j(state),
         }
     }
@@ -116,7 +123,13 @@ impl EnergyBalance {
         if rec.links.len() != net.links().len() || rec.nodes.len() != net.nodes().len() {
             return Err(BalanceError::Mismatch);
         }
-        for (link, lr) in net.links().iter().zip(&rec.links) {
+        if self.link_heat_j.len() != rec.links.len() {
+            self.link_heat_j = vec![0.0; rec.links.len()];
+            self.link_collected_kg = vec![0.0; rec.links.len()];
+        }
+        for (i, (link, lr)) in net.links().iter().zip(&rec.links).enumerate() {
+            self.link_heat_j[i] += lr.heat_w * dt;
+            self.link_collected_kg[i] += lr.collection_kg_s * dt;
             // Heat into a boundary is a loss along the link's path.
             let into_boundary_w = match (link.a, link.b) {
                 (End::Node(_), End::Boundary(_)) => lr.heat_w,

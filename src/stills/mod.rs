@@ -15,10 +15,12 @@
 //! brine starts each day at the feed salinity (until flushing is modelled this stands for a
 //! daily flush; salt changes no stored energy).
 
+pub mod multi_effect;
 pub mod render;
 pub mod single_slope;
 pub mod sunlight;
 pub mod weather;
+pub mod wick;
 
 use serde::Serialize;
 
@@ -32,9 +34,11 @@ use crate::network::{
 use crate::physics::constants::ZERO_CELSIUS_K;
 use crate::physics::irradiance::PlaneIrradiance;
 use crate::physics::water;
+pub use multi_effect::MultiEffectStill;
 pub use single_slope::SingleSlopeStill;
 pub use sunlight::SunlightSplit;
 pub use weather::{SiteWeather, site_weather};
+pub use wick::WickStill;
 
 /// Largest energy residual accepted, as a fraction of the absorbed sunlight (DESIGN.md:
 /// 0.1 %).
@@ -115,6 +119,12 @@ pub trait StillModel {
     fn set_brine_kg(&self) -> f64;
     /// Kind-specific details for the result.
     fn details(&self) -> KindDetails;
+    /// Kind-specific details completed from the totals of a run (per-stage distillate, dry
+    /// hours, gain output ratio …); by default the fixed [`StillModel::details`].
+    fn run_details(&self, run: &RunTotals) -> KindDetails {
+        let _ = run;
+        self.details()
+    }
     /// The state at the start of a run: every node at `t_k` \[K\], brine at its set mass and
     /// `salinity_g_kg` [g kg⁻¹].
     fn initial_state(&self, t_k: f64, salinity_g_kg: f64) -> Result<State, NetworkError>;
@@ -126,6 +136,72 @@ pub trait StillModel {
         state: &State,
         inputs: &mut Inputs,
     ) -> Result<SunlightSplit, NetworkError>;
+}
+
+/// Totals of a run, per link and per node, from which a variant completes its details.
+///
+/// With a monthly climate each month's (last, periodic) average day counts for the days of
+/// the month; with a weather file every simulated day counts once.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct RunTotals {
+    /// Days represented [day].
+    pub days: f64,
+    /// Hours represented \[h\].
+    pub hours: f64,
+    /// Sunlight on the aperture (plane of array × cover area) [J].
+    pub incident_j: f64,
+    /// Sunlight entering through the cover(s) [J].
+    pub entering_j: f64,
+    /// Distillate [kg].
+    pub distillate_kg: f64,
+    /// Distillate × latent heat at the brine node's temperature [J].
+    pub distillate_latent_j: f64,
+    /// Brine drained (run-off) [kg].
+    pub drained_kg: f64,
+    /// Heat carried by each link from end `a` to end `b` [J], in link order.
+    pub link_heat_j: Vec<f64>,
+    /// Distillate collected by each link [kg], in link order.
+    pub link_collected_kg: Vec<f64>,
+    /// Highest temperature of each node [K], in node order.
+    pub node_max_k: Vec<f64>,
+    /// Hours in which each water node was dry at some moment \[h\], in node order.
+    pub node_dry_hours: Vec<f64>,
+}
+
+impl RunTotals {
+    fn add_day(&mut self, d: &DayTotals, weight: f64) {
+        let Some(b) = d.balance.as_ref() else {
+            return;
+        };
+        let grow = |v: &mut Vec<f64>, n: usize, fill: f64| {
+            if v.len() != n {
+                *v = vec![fill; n];
+            }
+        };
+        grow(&mut self.link_heat_j, b.link_heat_j.len(), 0.0);
+        grow(&mut self.link_collected_kg, b.link_collected_kg.len(), 0.0);
+        grow(&mut self.node_max_k, d.node_max_k.len(), f64::MIN);
+        grow(&mut self.node_dry_hours, d.node_dry_hours.len(), 0.0);
+        self.days += weight;
+        self.hours += weight * d.hours_simulated;
+        self.incident_j += weight * d.incident_j;
+        self.entering_j += weight * d.entering_j;
+        self.distillate_kg += weight * d.distillate_kg;
+        self.distillate_latent_j += weight * d.distillate_latent_j;
+        self.drained_kg += weight * b.drained_kg;
+        for (a, x) in self.link_heat_j.iter_mut().zip(&b.link_heat_j) {
+            *a += weight * x;
+        }
+        for (a, x) in self.link_collected_kg.iter_mut().zip(&b.link_collected_kg) {
+            *a += weight * x;
+        }
+        for (a, x) in self.node_max_k.iter_mut().zip(&d.node_max_k) {
+            *a = a.max(*x);
+        }
+        for (a, x) in self.node_dry_hours.iter_mut().zip(&d.node_dry_hours) {
+            *a += weight * x;
+        }
+    }
 }
 
 /// Kind-specific details carried in a [`VariantResult`].
@@ -150,6 +226,46 @@ pub enum KindDetails {
         wall_area_m2: f64,
         /// Whether every optional loss path was off.
         ideal: bool,
+    },
+    /// A tilted wick still.
+    Wick {
+        /// Cover and wick tilt \[deg\].
+        cover_tilt_deg: f64,
+        /// Wick-to-cover gap \[mm\].
+        gap_mm: f64,
+        /// Feed per m² of wick [L h⁻¹ m⁻²].
+        feed_l_h_m2: f64,
+        /// Wick area \[m²\].
+        wick_area_m2: f64,
+        /// Backing overall coefficient [W m⁻² K⁻¹].
+        back_u_w_m2_k: f64,
+        /// Share of the simulated hours in which the cloth was dry at some moment [-].
+        dry_hour_fraction: f64,
+        /// Warm brine running off the wick, per day [L day⁻¹].
+        run_off_l_day: f64,
+    },
+    /// A multi-effect diffusion still with latent-heat recovery.
+    MultiEffect {
+        /// Number of stages.
+        stages: u32,
+        /// Air gap of each stage \[mm\].
+        gap_mm: f64,
+        /// Sink kind (`air-fins` or `water-body`).
+        sink: String,
+        /// Last plate to sink coefficient [W m⁻² K⁻¹].
+        sink_coefficient_w_m2_k: f64,
+        /// Edge and frame conductance of each stage node [W K⁻¹].
+        edge_ua_per_node_w_k: f64,
+        /// Highest temperature of each stage's wick [°C], first stage first.
+        stage_max_c: Vec<f64>,
+        /// Distillate of each stage per m² footprint [L m⁻² day⁻¹], first stage first.
+        stage_l_m2_day: Vec<f64>,
+        /// Distillate × latent heat ÷ sunlight on the aperture [-] (DESIGN.md).
+        solar_to_vapour_efficiency: f64,
+        /// Distillate × latent heat ÷ heat delivered to the first stage [-] (DESIGN.md).
+        gain_output_ratio: f64,
+        /// Heat delivered to the first stage per m² footprint [kWh m⁻² day⁻¹].
+        first_stage_heat_kwh_m2_day: f64,
     },
 }
 
@@ -371,6 +487,18 @@ pub fn build_model(
             &loaded.library,
             weather.pressure_pa,
         )?))),
+        VariantKind::Wick(k) => Ok(Some(Box::new(WickStill::new(
+            variant,
+            k,
+            &loaded.library,
+            weather.pressure_pa,
+        )?))),
+        VariantKind::MultiEffect(k) => Ok(Some(Box::new(MultiEffectStill::new(
+            variant,
+            k,
+            &loaded.library,
+            weather.pressure_pa,
+        )?))),
         _ => Ok(None),
     }
 }
@@ -448,6 +576,12 @@ struct DayTotals {
     max_cover_k: f64,
     hours: Vec<HourRecord>,
     balance: Option<EnergyBalance>,
+    /// Hours simulated.
+    hours_simulated: f64,
+    /// Highest temperature of each node [K].
+    node_max_k: Vec<f64>,
+    /// Hours in which each water node was dry at some moment.
+    node_dry_hours: Vec<f64>,
 }
 
 fn model_error(name: &str, month: u32, hour: Option<f64>, reason: String) -> Error {
@@ -489,7 +623,17 @@ fn run_day(
     let total_area: f64 = plane_areas.iter().sum::<f64>().max(f64::MIN_POSITIVE);
     let mut sim = Simulation::new(net, state, opts.settings, opts.control)
         .map_err(|e| model_error(name, month, None, e.to_string()))?;
-    let mut t = DayTotals::default();
+    let mut t = DayTotals {
+        node_max_k: vec![f64::MIN; net.nodes().len()],
+        node_dry_hours: vec![0.0; net.nodes().len()],
+        ..DayTotals::default()
+    };
+    let is_dry = |s: &State, i: usize| {
+        let node = &net.nodes()[i];
+        node.holds_water
+            && s.brine_kg.get(i).copied().unwrap_or(0.0) - s.salt_kg.get(i).copied().unwrap_or(0.0)
+                <= node.dry_mass_kg
+    };
     for (rec, p) in records.iter().zip(poa) {
         let m = (rec.month.clamp(1, 12) - 1) as usize;
         let ctx = HourContext {
@@ -517,8 +661,22 @@ fn run_day(
         }
         let before = sim.balance().clone();
         let dt_s = rec.period_h * 3600.0;
-        sim.advance(inputs, dt_s)
+        let dry_before: Vec<bool> = (0..net.nodes().len())
+            .map(|i| is_dry(sim.state(), i))
+            .collect();
+        let summary = sim
+            .advance(inputs, dt_s)
             .map_err(|e| hour_err(e.to_string()))?;
+        t.hours_simulated += rec.period_h;
+        for (i, was_dry) in dry_before.iter().enumerate() {
+            let dried = summary.dry_outs.iter().any(|&(_, n)| n == i);
+            if *was_dry || dried || is_dry(sim.state(), i) {
+                t.node_dry_hours[i] += rec.period_h;
+            }
+            if let Some(tk) = sim.state().temperature_k(NodeId(i)) {
+                t.node_max_k[i] = t.node_max_k[i].max(tk);
+            }
+        }
         let after = sim.balance();
         let d_kg = after.distillate_kg - before.distillate_kg;
         let s = sim.state();
@@ -647,6 +805,7 @@ pub fn run_model(
         .map_err(|e| model_error(name, 1, None, e.to_string()))?;
     let mut months = Vec::with_capacity(12);
     let mut hourly = Vec::new();
+    let mut run = RunTotals::default();
     if weather.average_days {
         for m in 1..=12u32 {
             let idx: Vec<usize> = (0..hours.len()).filter(|&i| hours[i].month == m).collect();
@@ -699,6 +858,10 @@ pub fn run_model(
                 ));
             };
             let mut totals = totals;
+            run.add_day(
+                &totals,
+                f64::from(crate::design::DAYS_IN_MONTH[(m - 1) as usize]),
+            );
             hourly.append(&mut totals.hours);
             months.push(month_result(model, m, std::slice::from_ref(&totals), days));
         }
@@ -724,6 +887,7 @@ pub fn run_model(
                 &mut inputs,
                 opts,
             )?;
+            run.add_day(&totals, 1.0);
             hourly.append(&mut totals.hours);
             let m = (hours[start].month.clamp(1, 12) - 1) as usize;
             per_month[m].push(totals);
@@ -734,7 +898,14 @@ pub fn run_model(
             months.push(month_result(model, i as u32 + 1, days, 0));
         }
     }
-    finish(model, name, kind, months, opts.hourly.then_some(hourly))
+    finish(
+        model,
+        name,
+        kind,
+        months,
+        opts.hourly.then_some(hourly),
+        &run,
+    )
 }
 
 fn finish(
@@ -743,6 +914,7 @@ fn finish(
     kind: &str,
     months: Vec<MonthResult>,
     hourly: Option<Vec<HourRecord>>,
+    run: &RunTotals,
 ) -> Result<VariantResult, Error> {
     for mr in &months {
         let values = [
@@ -798,7 +970,7 @@ fn finish(
         energy_residual: residual,
         months,
         hourly,
-        details: model.details(),
+        details: model.run_details(run),
     })
 }
 
@@ -812,6 +984,18 @@ pub fn run_single_day(
     month: u32,
     opts: &RunOptions,
 ) -> Result<MonthResult, Error> {
+    run_single_day_with_details(model, name, weather, month, opts).map(|(m, _)| m)
+}
+
+/// As [`run_single_day`], also returning the kind's details completed from that one day
+/// ([`StillModel::run_details`]).
+pub fn run_single_day_with_details(
+    model: &dyn StillModel,
+    name: &str,
+    weather: &SiteWeather,
+    month: u32,
+    opts: &RunOptions,
+) -> Result<(MonthResult, KindDetails), Error> {
     let month = month.clamp(1, 12);
     let hours = &weather.series.hours;
     let idx: Vec<usize> = (0..hours.len())
@@ -856,5 +1040,10 @@ pub fn run_single_day(
         .inputs(t0)
         .map_err(|e| model_error(name, month, None, e.to_string()))?;
     let (totals, _) = run_day(model, name, recs, &poa, weather, state, &mut inputs, opts)?;
-    Ok(month_result(model, month, std::slice::from_ref(&totals), 1))
+    let mut run = RunTotals::default();
+    run.add_day(&totals, 1.0);
+    Ok((
+        month_result(model, month, std::slice::from_ref(&totals), 1),
+        model.run_details(&run),
+    ))
 }

@@ -313,8 +313,105 @@ impl StillOptics {
     }
 }
 
+/// Diffuse reflectance of one glass cover seen from the absorber below, ρ_d [-]: Duffie &
+/// Beckman (2013) §5.5 give ≈ 0.16 for one cover (from memory).
+pub const COVER_DIFFUSE_REFLECTANCE: f64 = 0.16;
+
+/// Transmittance–absorptance product of a cover over a flat absorber, with the light the
+/// absorber reflects back up and the cover returns to it [-].
+///
+/// Duffie & Beckman (2013) eq. 5.5.1 (from memory): (τα) = τα / (1 − (1 − α)ρ_d).
+///
+/// * `tau` — cover transmittance τ [-]; `alpha` — absorber absorptance α [-]
+/// * `rho_d` — diffuse reflectance of the cover from below ρ_d [-]
+///
+/// Returns (τα) [-] in 0…1.
+pub fn transmittance_absorptance_product(tau: f64, alpha: f64, rho_d: f64) -> f64 {
+    let t = tau.clamp(0.0, 1.0);
+    let a = alpha.clamp(0.0, 1.0);
+    let r = rho_d.clamp(0.0, 0.99);
+    (t * a / (1.0 - (1.0 - a) * r)).clamp(0.0, 1.0)
+}
+
+/// A flat absorber (a wick cloth or a multi-effect still's absorber plate) parallel to its
+/// cover, precomputed once.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FlatOptics {
+    /// Tilt of cover and absorber β \[rad\].
+    pub tilt_rad: f64,
+    /// Cover area \[m²\] (the absorber has the same area).
+    pub cover_area_m2: f64,
+    /// Cover refractive index [-].
+    pub cover_n: f64,
+    /// Cover extinction coefficient K [m⁻¹].
+    pub cover_k_per_m: f64,
+    /// Cover thickness \[m\].
+    pub cover_thickness_m: f64,
+    /// Condensate under the cover: `Some(true)` drops, `Some(false)` a film, `None` a dry
+    /// cover (glazing over a dry air space).
+    pub condensate: Option<bool>,
+    /// Solar absorptance of the absorber or wet cloth [-].
+    pub absorptance: f64,
+}
+
+impl FlatOptics {
+    /// Split one record's plane-of-array irradiance (per m² of cover) between the cover and
+    /// the absorber; the absorber's share is returned in [`SunlightSplit::liner_w`].
+    ///
+    /// Cover: Fresnel + Bouguer ([`cover_optics`]) at the beam incidence angle and at
+    /// Brandemuehl & Beckman's equivalent angles for sky and ground diffuse
+    /// ([`diffuse_equivalent_incidence_rad`]); condensate as in [`condensate_transmittance`].
+    /// Absorber: [`transmittance_absorptance_product`] with [`COVER_DIFFUSE_REFLECTANCE`].
+    /// Nothing is shaded: the absorber fills the cover and the gap is small.
+    pub fn split(&self, poa: &PlaneIrradiance) -> SunlightSplit {
+        let a = self.cover_area_m2;
+        let beam = poa.beam_w_m2.max(0.0) * a;
+        let sky = poa.sky_diffuse_w_m2.max(0.0) * a;
+        let ground = poa.ground_w_m2.max(0.0) * a;
+        let incident = beam + sky + ground;
+        if incident <= 0.0 {
+            return SunlightSplit::default();
+        }
+        let theta_beam = poa.cos_incidence.clamp(-1.0, 1.0).acos();
+        let (th_sky, th_ground) = diffuse_equivalent_incidence_rad(self.tilt_rad);
+        let optics =
+            |th: f64| cover_optics(th, self.cover_n, self.cover_k_per_m, self.cover_thickness_m);
+        let (ob, os, og) = (optics(theta_beam), optics(th_sky), optics(th_ground));
+        let through = beam * ob.transmittance + sky * os.transmittance + ground * og.transmittance;
+        let mut cover_w = beam * ob.absorptance + sky * os.absorptance + ground * og.absorptance;
+        let wet = self.condensate.map_or(1.0, condensate_transmittance);
+        if self.condensate == Some(false) {
+            cover_w += through * (1.0 - wet);
+        }
+        let entering = through * wet;
+        let tau_alpha =
+            transmittance_absorptance_product(1.0, self.absorptance, COVER_DIFFUSE_REFLECTANCE);
+        let absorbed = entering * tau_alpha;
+        SunlightSplit {
+            incident_w: incident,
+            entering_w: entering,
+            cover_w,
+            brine_w: 0.0,
+            liner_w: absorbed,
+            walls_w: 0.0,
+            lost_w: incident - cover_w - absorbed,
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
+
+    #[test]
+    fn tau_alpha_product_of_one_cover() {
+        // Duffie & Beckman (2013) eq. 5.5.1 (from memory): τ = 0.84, α = 0.90, ρ_d = 0.16
+        // → (τα) = 0.756/(1 − 0.1·0.16) = 0.7683 (hand calculation; 1e-4 for rounding).
+        let ta = transmittance_absorptance_product(0.84, 0.90, 0.16);
+        assert!((ta - 0.7683).abs() < 1e-4, "{ta}");
+        // A black absorber (α = 1) returns nothing: (τα) = τ exactly.
+        assert!((transmittance_absorptance_product(0.84, 1.0, 0.16) - 0.84).abs() < 1e-12);
+    }
+
     use super::*;
 
     fn geom() -> Enclosure {

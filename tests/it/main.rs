@@ -9,3 +9,5 @@ mod physics_sun;
 mod physics_transfer;
 mod physics_water;
 mod stills;
+mod stills_multi_effect;
+mod stills_wick;
