@@ -471,7 +471,10 @@ impl Default for RunOptions {
 
 /// Whether a kind has a model yet.
 pub fn is_modelled(kind: &VariantKind) -> bool {
-    matches!(kind, VariantKind::SingleSlope(_))
+    matches!(
+        kind,
+        VariantKind::SingleSlope(_) | VariantKind::Wick(_) | VariantKind::MultiEffect(_)
+    )
 }
 
 /// Build the model of a variant, or `None` for a kind not modelled yet.
