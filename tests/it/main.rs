@@ -9,3 +9,5 @@ mod physics_sun;
 mod physics_transfer;
 mod physics_water;
 mod stills;
+mod stills_double_slope;
+mod stills_stepped;
