@@ -108,3 +108,85 @@ fn one_year_hourly(bencher: divan::Bencher) {
         divan::black_box(r.annual_l)
     });
 }
+
+/// One solver step (60 s, April noon) of the demo variant of `kind`, all its planes.
+fn step_of_kind(bencher: divan::Bencher, kind: &str) {
+    let (loaded, w) = demo();
+    let v = loaded
+        .design
+        .variants
+        .iter()
+        .find(|v| v.kind.name() == kind)
+        .expect("the demo has the kind");
+    let model = stills::build_model(&loaded, v, &w)
+        .expect("builds")
+        .expect("the kind is modelled");
+    let net = model.network();
+    let i = 3 * 24 + 12;
+    let poa: Vec<_> = model
+        .planes()
+        .iter()
+        .map(|(p, _)| w.series.plane_series(*p, SkyModel::HayDavies)[i])
+        .collect();
+    let ctx = HourContext {
+        weather: &w.series.hours[i],
+        poa: &poa,
+        ground_k: w.month_mean_air_k[3],
+        dew_point_known: w.dew_point_known,
+        feed_salinity_g_kg: w.feed_salinity_g_kg,
+    };
+    let start = model
+        .initial_state(320.0, w.feed_salinity_g_kg)
+        .expect("state");
+    let mut inputs = net.inputs(300.0).expect("inputs");
+    model
+        .hour_inputs(&ctx, &start, &mut inputs)
+        .expect("hour inputs");
+    let mut solver = Solver::new(net, SolverSettings::default()).expect("solver");
+    let mut record = StepRecord::new(net);
+    bencher.bench_local(|| {
+        let mut s = start.clone();
+        let out = solver.step(&mut s, &inputs, 60.0, &mut record);
+        divan::black_box((out, s))
+    });
+}
+
+/// One hourly year of the demo variant of `kind`.
+fn year_of_kind(bencher: divan::Bencher, kind: &str) {
+    let (loaded, w) = demo();
+    let year = year_of(&w);
+    let v = loaded
+        .design
+        .variants
+        .iter()
+        .find(|v| v.kind.name() == kind)
+        .expect("the demo has the kind");
+    let model = stills::build_model(&loaded, v, &year)
+        .expect("builds")
+        .expect("the kind is modelled");
+    bencher.bench_local(|| {
+        let r = stills::run_model(model.as_ref(), &v.name, kind, &year, &RunOptions::default())
+            .expect("a year runs");
+        divan::black_box(r.annual_l)
+    });
+}
+
+#[divan::bench]
+fn double_slope_step(bencher: divan::Bencher) {
+    step_of_kind(bencher, "double-slope");
+}
+
+#[divan::bench(sample_count = 10)]
+fn double_slope_year(bencher: divan::Bencher) {
+    year_of_kind(bencher, "double-slope");
+}
+
+#[divan::bench]
+fn stepped_step(bencher: divan::Bencher) {
+    step_of_kind(bencher, "stepped");
+}
+
+#[divan::bench(sample_count = 10)]
+fn stepped_year(bencher: divan::Bencher) {
+    year_of_kind(bencher, "stepped");
+}

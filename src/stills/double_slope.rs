@@ -465,8 +465,8 @@ impl StillModel for DoubleSlopeStill {
             };
             let water_beam = through.entering_beam_w * sb.water;
             let water_diffuse = through.entering_diffuse_w * sd.water;
-            let across = through.entering_beam_w * sb.far_cover
-                + through.entering_diffuse_w * sd.far_cover;
+            let across =
+                through.entering_beam_w * sb.far_cover + through.entering_diffuse_w * sd.far_cover;
             let on_walls = (through.entering_w() - water_beam - water_diffuse - across).max(0.0);
             let (brine_w, liner_w) = optics.into_brine(water_beam, water_diffuse, h.sun);
             let far_w = across * self.optics[other].far_cover_absorptance();

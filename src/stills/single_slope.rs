@@ -87,7 +87,11 @@ pub struct SingleSlopeStill {
     details: KindDetails,
 }
 
-pub(crate) fn layers_of(layers: &[Layer], lib: &Library, field: &str) -> Result<Vec<(f64, f64)>, Error> {
+pub(crate) fn layers_of(
+    layers: &[Layer],
+    lib: &Library,
+    field: &str,
+) -> Result<Vec<(f64, f64)>, Error> {
     layers
         .iter()
         .map(|l| {

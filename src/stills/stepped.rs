@@ -29,8 +29,7 @@ use super::sunlight::{
 use super::{Basin, HourContext, KindDetails, StillModel};
 use crate::climate::Plane;
 use crate::design::{
-    BasinKind, Condensate, DEFAULT_SOILING_TRANSMITTANCE, Library, LossSwitches, Stepped,
-    Variant,
+    BasinKind, Condensate, DEFAULT_SOILING_TRANSMITTANCE, Library, LossSwitches, Stepped, Variant,
 };
 use crate::error::Error;
 use crate::network::{
@@ -214,13 +213,14 @@ impl SteppedStill {
                 LossPath::Internal,
             );
         }
-        let u_base = conduction_layers_u_w_m2_k(&base_layers, BASE_FILM_W_M2_K).ok_or_else(|| {
-            Error::Model {
-                variant: name.to_owned(),
-                at: String::new(),
-                reason: "base insulation layers give no finite conductance".to_owned(),
-            }
-        })?;
+        let u_base =
+            conduction_layers_u_w_m2_k(&base_layers, BASE_FILM_W_M2_K).ok_or_else(|| {
+                Error::Model {
+                    variant: name.to_owned(),
+                    at: String::new(),
+                    reason: "base insulation layers give no finite conductance".to_owned(),
+                }
+            })?;
         b.conductance("base", steps, ground, u_base * footprint, LossPath::Base);
 
         let mut side_links = Vec::new();

@@ -702,4 +702,88 @@ mod tests {
         };
         assert!((diffuse_brine_share(&g) - 0.92319).abs() < 1e-4);
     }
+
+    fn gable() -> GableSection {
+        GableSection {
+            width_m: 1.4,
+            length_m: 3.0,
+            tilt_rad: 20f64.to_radians(),
+            eave_above_brine_m: 0.12,
+        }
+    }
+
+    #[test]
+    fn gable_diffuse_shares_follow_the_crossed_strings() {
+        // Hand calculation from the doc-comment formulas: a = 0.7/cos 20° = 0.74494;
+        // far face 1 − cos 20° = 0.06031; brine (√(1.96 + 0.0144) − 0.12)/(2a) = 0.86259.
+        let s = gable_diffuse_shares(&gable());
+        assert!((s.far_cover - 0.06031).abs() < 1e-4, "{s:?}");
+        assert!((s.water - 0.86259).abs() < 1e-4, "{s:?}");
+        assert!((s.water + s.far_cover + s.walls - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn gable_beam_from_overhead_lands_on_the_brine_and_low_sun_crosses_to_the_far_face() {
+        // Geometry: a vertical ray lands straight below its entry point (exact).
+        let east = std::f64::consts::FRAC_PI_2;
+        let overhead = SunPosition {
+            zenith_rad: 0.0,
+            azimuth_rad: east,
+        };
+        let s = gable_beam_shares(&gable(), overhead, east);
+        assert!((s.water - 1.0).abs() < 1e-12);
+        // Sun due east at 80° zenith (k = 5.67, k·tan 20° = 2.06 > 1): rays entering the
+        // east face near the ridge meet the west face before the brine (doc-comment rule).
+        let low = SunPosition {
+            zenith_rad: 80f64.to_radians(),
+            azimuth_rad: east,
+        };
+        let s = gable_beam_shares(&gable(), low, east);
+        assert!(s.far_cover > 0.3, "{s:?}");
+        assert!((s.water + s.far_cover + s.walls - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn one_tray_gives_the_flat_basin_shares() {
+        // With one tray the stair rules reduce to the flat-basin ones (tan α = 0).
+        let sun = SunPosition {
+            zenith_rad: 50f64.to_radians(),
+            azimuth_rad: 3.5,
+        };
+        let g = geom();
+        let stair = StairSection {
+            width_m: g.width_m,
+            length_m: g.length_m,
+            tilt_rad: g.tilt_rad,
+            front_above_brine_m: g.front_above_brine_m,
+            trays: 1,
+            riser_m: 0.03,
+        };
+        let b = stair_beam_shares(&stair, sun, std::f64::consts::PI);
+        let flat = beam_brine_share(&g, sun, std::f64::consts::PI);
+        assert!((b.water - flat).abs() < 1e-12 && b.risers.abs() < 1e-15);
+        let d = stair_diffuse_shares(&stair);
+        assert!((d.water - diffuse_brine_share(&g)).abs() < 1e-12);
+    }
+
+    #[test]
+    fn risers_take_k_tan_alpha_over_one_plus_k_tan_alpha_of_the_beam_on_the_steps() {
+        // 4 trays on 1 m, 40 mm risers: tan α = 3·0.04/1 = 0.12; sun due south at 45°
+        // (k = 1): risers take 0.12/1.12 = 0.10714 of the beam landing on the steps.
+        let stair = StairSection {
+            width_m: 1.0,
+            length_m: 2.0,
+            tilt_rad: 20f64.to_radians(),
+            front_above_brine_m: 0.07,
+            trays: 4,
+            riser_m: 0.04,
+        };
+        let sun = SunPosition {
+            zenith_rad: 45f64.to_radians(),
+            azimuth_rad: std::f64::consts::PI,
+        };
+        let s = stair_beam_shares(&stair, sun, std::f64::consts::PI);
+        let on_steps = s.water + s.risers;
+        assert!((s.risers / on_steps - 0.10714).abs() < 1e-4, "{s:?}");
+    }
 }

@@ -54,7 +54,11 @@ fn demo_months_close_their_energy_balance() {
         "twin-roof: mean {:.2} L/m2/day, worst month {:.2}",
         r.mean_l_m2_day, r.worst_month.l_m2_day
     );
-    assert!((1.5..=5.0).contains(&r.mean_l_m2_day), "{}", r.mean_l_m2_day);
+    assert!(
+        (1.5..=5.0).contains(&r.mean_l_m2_day),
+        "{}",
+        r.mean_l_m2_day
+    );
 }
 
 /// Weather symmetric about solar noon: April's average day at the demo site for the
@@ -73,8 +77,8 @@ fn symmetric_day(w: &stills::SiteWeather) -> Vec<HourlyWeather> {
     for i in 0..12 {
         let mut m = april[i];
         m.hour_mid_solar_h = 24.0 - april[i].hour_mid_solar_h;
-        m.sun.azimuth_rad = (std::f64::consts::TAU - april[i].sun.azimuth_rad)
-            .rem_euclid(std::f64::consts::TAU);
+        m.sun.azimuth_rad =
+            (std::f64::consts::TAU - april[i].sun.azimuth_rad).rem_euclid(std::f64::consts::TAU);
         day[23 - i] = m;
     }
     day
@@ -115,9 +119,13 @@ fn steady_hours(model: &DoubleSlopeStill, w: &stills::SiteWeather) -> Vec<HourRe
                 .unwrap();
             let mut inputs = net.inputs(rec.t_air_k).unwrap();
             model.hour_inputs(&ctx, &state, &mut inputs).unwrap();
-            let mut sim =
-                Simulation::new(net, state, SolverSettings::default(), StepControl::default())
-                    .unwrap();
+            let mut sim = Simulation::new(
+                net,
+                state,
+                SolverSettings::default(),
+                StepControl::default(),
+            )
+            .unwrap();
             sim.settle(&inputs).unwrap();
             let s = sim.state();
             let r = sim.last_record();
@@ -159,14 +167,29 @@ fn east_west_still_without_heat_capacity_is_mirror_symmetric_about_noon() {
         // Issue 5: mirror-symmetric hourly results to 1 % — temperatures as rises above the
         // air, condensation on each face against the other face's mirror-hour value.
         assert!(
-            near(a.t_brine_k - t_air, b.t_brine_k - t_air, a.t_brine_k - t_air + 0.1),
+            near(
+                a.t_brine_k - t_air,
+                b.t_brine_k - t_air,
+                a.t_brine_k - t_air + 0.1
+            ),
             "hour {i}: brine {} vs {}",
             a.t_brine_k,
             b.t_brine_k
         );
-        assert!(near(a.t_near_k - t_air, b.t_far_k - t_air, a.t_near_k - t_air + 0.1));
-        assert!(near(a.t_far_k - t_air, b.t_near_k - t_air, a.t_far_k - t_air + 0.1));
-        assert!(near(a.near_kg_s, b.far_kg_s, a.near_kg_s + 1e-9), "hour {i}");
+        assert!(near(
+            a.t_near_k - t_air,
+            b.t_far_k - t_air,
+            a.t_near_k - t_air + 0.1
+        ));
+        assert!(near(
+            a.t_far_k - t_air,
+            b.t_near_k - t_air,
+            a.t_far_k - t_air + 0.1
+        ));
+        assert!(
+            near(a.near_kg_s, b.far_kg_s, a.near_kg_s + 1e-9),
+            "hour {i}"
+        );
         assert!(near(a.far_kg_s, b.near_kg_s, a.far_kg_s + 1e-9), "hour {i}");
     }
     // The check is not empty: at 09:30 the east face is sunlit and the east–west
@@ -190,7 +213,11 @@ fn the_cooler_shaded_face_condenses_more() {
         assert!(h.t_far_k < h.t_near_k, "hour {i}");
         assert!(h.far_kg_s > h.near_kg_s, "hour {i}");
         let p = &hours[23 - i];
-        assert!(p.t_near_k < p.t_far_k && p.near_kg_s > p.far_kg_s, "hour {}", 23 - i);
+        assert!(
+            p.t_near_k < p.t_far_k && p.near_kg_s > p.far_kg_s,
+            "hour {}",
+            23 - i
+        );
     }
 }
 

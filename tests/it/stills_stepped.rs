@@ -26,8 +26,13 @@ fn design_with(kind: &str, width_m: f64, length_m: f64, fields: &str) -> LoadedD
 
 fn run(loaded: &LoadedDesign) -> VariantResult {
     let w = stills::site_weather(loaded).unwrap();
-    stills::simulate_variant(loaded, &loaded.design.variants[0], &w, &RunOptions::default())
-        .unwrap()
+    stills::simulate_variant(
+        loaded,
+        &loaded.design.variants[0],
+        &w,
+        &RunOptions::default(),
+    )
+    .unwrap()
 }
 
 fn check_sane(r: &VariantResult) {
@@ -125,7 +130,11 @@ fn one_tray_of_basin_depth_reproduces_the_single_slope() {
             a.annual_l
         );
         for (ma, mb) in a.months.iter().zip(&b.months) {
-            assert!((mb.l_m2_day / ma.l_m2_day - 1.0).abs() < 0.05, "month {}", ma.month);
+            assert!(
+                (mb.l_m2_day / ma.l_m2_day - 1.0).abs() < 0.05,
+                "month {}",
+                ma.month
+            );
         }
     }
 }
