@@ -1,12 +1,11 @@
-//! Benchmarks of the single-slope basin still: one solver step of its network, and one
-//! simulated year of hourly weather (365 days built from the demo's 12 average days) at
+//! Benchmarks of every still kind: one solver step of its network (60 s at April noon) and
+//! one simulated year of hourly weather (365 days built from the demo's 12 average days) at
 //! the default accuracy (the one that passes the 1 % step-refinement test).
 //!
-//! Run with `cargo bench --bench stills`. Targets (issue 4): a step under 2 µs, a year
-//! under 100 ms. Issue 5 adds the wick still and a 10-stage multi-effect still (target: a
-//! step under 10 µs).
+//! Run with `cargo bench --bench stills`. Targets: single-slope step under 2 µs and year
+//! under 100 ms (issue 4); a 10-stage multi-effect step under 10 µs (issue 5).
 
-use stillbench::climate::{Plane, SkyModel, WeatherSeries, WeatherSource};
+use stillbench::climate::{SkyModel, WeatherSeries, WeatherSource};
 use stillbench::design;
 use stillbench::network::{Solver, SolverSettings, StepRecord};
 use stillbench::stills::{self, HourContext, RunOptions, SiteWeather};
@@ -54,63 +53,7 @@ fn year_of(w: &SiteWeather) -> SiteWeather {
     }
 }
 
-#[divan::bench]
-fn one_solver_step(bencher: divan::Bencher) {
-    let (loaded, w) = demo();
-    let v = &loaded.design.variants[0];
-    let model = stills::build_model(&loaded, v, &w)
-        .expect("builds")
-        .expect("single-slope is modelled");
-    let net = model.network();
-    let plane = Plane::from_degrees(v.cover_tilt_deg(), v.cover_azimuth_deg);
-    let poa = w.series.plane_series(plane, SkyModel::HayDavies);
-    // April, 12:00–13:00 solar time.
-    let i = 3 * 24 + 12;
-    let ctx = HourContext {
-        weather: &w.series.hours[i],
-        poa: std::slice::from_ref(&poa[i]),
-        ground_k: w.month_mean_air_k[3],
-        dew_point_known: w.dew_point_known,
-        feed_salinity_g_kg: w.feed_salinity_g_kg,
-    };
-    let start = model
-        .initial_state(320.0, w.feed_salinity_g_kg)
-        .expect("state");
-    let mut inputs = net.inputs(300.0).expect("inputs");
-    model
-        .hour_inputs(&ctx, &start, &mut inputs)
-        .expect("hour inputs");
-    let mut solver = Solver::new(net, SolverSettings::default()).expect("solver");
-    let mut record = StepRecord::new(net);
-    bencher.bench_local(|| {
-        let mut s = start.clone();
-        let out = solver.step(&mut s, &inputs, 60.0, &mut record);
-        divan::black_box((out, s))
-    });
-}
-
-#[divan::bench(sample_count = 10)]
-fn one_year_hourly(bencher: divan::Bencher) {
-    let (loaded, w) = demo();
-    let year = year_of(&w);
-    let v = &loaded.design.variants[0];
-    let model = stills::build_model(&loaded, v, &year)
-        .expect("builds")
-        .expect("single-slope is modelled");
-    bencher.bench_local(|| {
-        let r = stills::run_model(
-            model.as_ref(),
-            &v.name,
-            "single-slope",
-            &year,
-            &RunOptions::default(),
-        )
-        .expect("a year runs");
-        divan::black_box(r.annual_l)
-    });
-}
-
-/// The demo site with one extra variant (`variant` is its TOML body after `[[variant]]`).
+/// The demo site with one variant only (`variant` is its TOML body after `[[variant]]`).
 fn demo_with(variant: &str) -> (design::LoadedDesign, SiteWeather) {
     let demo = design::DEMO_DESIGN;
     let head = &demo[..demo.find("[[variant]]").expect("the demo has variants")];
@@ -122,29 +65,39 @@ fn demo_with(variant: &str) -> (design::LoadedDesign, SiteWeather) {
     (loaded, w)
 }
 
-const WICK: &str = "name = \"wick\"\nkind = \"wick\"\nwidth_m = 0.9\nlength_m = 2.0\n\
-    cover_azimuth_deg = 180\ncover = \"window-glass-3mm\"\ncover_tilt_deg = 20\ngap_mm = 30\n\
-    cloth = \"jute-cloth\"\nfeed_l_h_m2 = 0.8";
+/// The demo design reduced to its variant of `kind`.
+fn demo_of_kind(kind: &str) -> (design::LoadedDesign, SiteWeather) {
+    let (mut loaded, w) = demo();
+    loaded.design.variants.retain(|v| v.kind.name() == kind);
+    assert_eq!(
+        loaded.design.variants.len(),
+        1,
+        "one demo variant of {kind}"
+    );
+    (loaded, w)
+}
 
 const TEN_STAGES: &str = "name = \"stack\"\nkind = \"multi-effect\"\nwidth_m = 0.5\nlength_m = 0.5\n\
     cover_azimuth_deg = 180\ncover = \"window-glass-3mm\"\nglazing_tilt_deg = 0\nstages = 10\n\
     gap_mm = 3\nplate = \"aluminium-plate\"\nabsorber = \"black-paint\"\n\
     wick_cloth = \"cotton-cloth\"\nsink = \"water-body\"\nfeed_l_h_m2 = 0.5";
 
-fn bench_step(bencher: divan::Bencher, variant: &str) {
-    let (loaded, w) = demo_with(variant);
+/// One solver step (60 s, April 12:00–13:00 solar time) of the design's only variant.
+fn bench_step(bencher: divan::Bencher, (loaded, w): (design::LoadedDesign, SiteWeather)) {
     let v = &loaded.design.variants[0];
     let model = stills::build_model(&loaded, v, &w)
         .expect("builds")
         .expect("the kind is modelled");
     let net = model.network();
-    let plane = Plane::from_degrees(v.cover_tilt_deg(), v.cover_azimuth_deg);
-    let poa = w.series.plane_series(plane, SkyModel::HayDavies);
-    // April, 12:00–13:00 solar time.
     let i = 3 * 24 + 12;
+    let poa: Vec<_> = model
+        .planes()
+        .iter()
+        .map(|(p, _)| w.series.plane_series(*p, SkyModel::HayDavies)[i])
+        .collect();
     let ctx = HourContext {
         weather: &w.series.hours[i],
-        poa: std::slice::from_ref(&poa[i]),
+        poa: &poa,
         ground_k: w.month_mean_air_k[3],
         dew_point_known: w.dew_point_known,
         feed_salinity_g_kg: w.feed_salinity_g_kg,
@@ -165,8 +118,8 @@ fn bench_step(bencher: divan::Bencher, variant: &str) {
     });
 }
 
-fn bench_year(bencher: divan::Bencher, variant: &str) {
-    let (loaded, w) = demo_with(variant);
+/// One hourly year of the design's only variant.
+fn bench_year(bencher: divan::Bencher, (loaded, w): (design::LoadedDesign, SiteWeather)) {
     let year = year_of(&w);
     let v = &loaded.design.variants[0];
     let model = stills::build_model(&loaded, v, &year)
@@ -185,22 +138,22 @@ fn bench_year(bencher: divan::Bencher, variant: &str) {
     });
 }
 
+#[divan::bench(args = ["single-slope", "double-slope", "wick", "stepped", "multi-effect"])]
+fn step(bencher: divan::Bencher, kind: &str) {
+    bench_step(bencher, demo_of_kind(kind));
+}
+
+#[divan::bench(args = ["single-slope", "double-slope", "wick", "stepped", "multi-effect"], sample_count = 10)]
+fn year(bencher: divan::Bencher, kind: &str) {
+    bench_year(bencher, demo_of_kind(kind));
+}
+
 #[divan::bench]
-fn wick_one_solver_step(bencher: divan::Bencher) {
-    bench_step(bencher, WICK);
+fn multi_effect_10_stages_step(bencher: divan::Bencher) {
+    bench_step(bencher, demo_with(TEN_STAGES));
 }
 
 #[divan::bench(sample_count = 10)]
-fn wick_one_year_hourly(bencher: divan::Bencher) {
-    bench_year(bencher, WICK);
-}
-
-#[divan::bench]
-fn multi_effect_10_stages_one_solver_step(bencher: divan::Bencher) {
-    bench_step(bencher, TEN_STAGES);
-}
-
-#[divan::bench(sample_count = 10)]
-fn multi_effect_10_stages_one_year_hourly(bencher: divan::Bencher) {
-    bench_year(bencher, TEN_STAGES);
+fn multi_effect_10_stages_year(bencher: divan::Bencher) {
+    bench_year(bencher, demo_with(TEN_STAGES));
 }

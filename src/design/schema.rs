@@ -427,6 +427,9 @@ pub enum InternalCorrelation {
     Dunkle,
     /// Kumar & Tiwari (1996), Nu = C (Gr Pr)^n fitted to passive stills.
     KumarTiwari,
+    /// Hollands, Unny, Raithby & Konicek (1976) for an inclined enclosure between parallel
+    /// plates, with the mean brine-to-cover gap as the plate spacing.
+    InclinedEnclosure,
 }
 
 /// One insulation layer.
@@ -713,6 +716,18 @@ pub struct Stepped {
     /// Fraction of vapour lost through gaps [-], [0, 0.5); default 0.05.
     #[serde(default = "default_leakage")]
     pub vapour_leakage: f64,
+    /// Internal transfer correlation; default `inclined-enclosure` (the gap over the steps is
+    /// small and nearly uniform).
+    #[serde(default = "default_stepped_correlation")]
+    pub internal_correlation: InternalCorrelation,
+    /// The risers carry wick cloth kept wet by the cascade, so they evaporate with the trays;
+    /// default true.
+    #[serde(default = "yes")]
+    pub wetted_risers: bool,
+}
+
+fn default_stepped_correlation() -> InternalCorrelation {
+    InternalCorrelation::InclinedEnclosure
 }
 
 impl Stepped {

@@ -15,9 +15,11 @@
 //! brine starts each day at the feed salinity (until flushing is modelled this stands for a
 //! daily flush; salt changes no stored energy).
 
+pub mod double_slope;
 pub mod multi_effect;
 pub mod render;
 pub mod single_slope;
+pub mod stepped;
 pub mod sunlight;
 pub mod weather;
 pub mod wick;
@@ -34,8 +36,10 @@ use crate::network::{
 use crate::physics::constants::ZERO_CELSIUS_K;
 use crate::physics::irradiance::PlaneIrradiance;
 use crate::physics::water;
+pub use double_slope::DoubleSlopeStill;
 pub use multi_effect::MultiEffectStill;
 pub use single_slope::SingleSlopeStill;
+pub use stepped::SteppedStill;
 pub use sunlight::SunlightSplit;
 pub use weather::{SiteWeather, site_weather};
 pub use wick::WickStill;
@@ -267,6 +271,47 @@ pub enum KindDetails {
         /// Heat delivered to the first stage per m² footprint [kWh m⁻² day⁻¹].
         first_stage_heat_kwh_m2_day: f64,
     },
+    /// A double-slope basin still.
+    DoubleSlope {
+        /// Side wall height under the eaves \[mm\].
+        side_wall_mm: f64,
+        /// Ridge height above the basin floor, derived \[mm\].
+        ridge_mm: f64,
+        /// Tilt of both faces \[deg\].
+        cover_tilt_deg: f64,
+        /// Directions the two faces face \[deg\], the design's face first.
+        face_azimuths_deg: [f64; 2],
+        /// Set brine depth \[mm\].
+        brine_depth_mm: f64,
+        /// Mean height of the cover above the brine \[mm\].
+        mean_gap_mm: f64,
+        /// Base overall coefficient [W m⁻² K⁻¹].
+        base_u_w_m2_k: f64,
+        /// Inner wall area above the brine modelled \[m²\] (0 when walls are left out).
+        wall_area_m2: f64,
+    },
+    /// A stepped (tray) still.
+    Stepped {
+        /// Number of trays.
+        trays: u32,
+        /// Front-to-back depth of one tray \[mm\].
+        tread_mm: f64,
+        /// Rise from one tray to the next \[mm\].
+        riser_mm: f64,
+        /// Tray (brine) depth \[mm\].
+        tray_depth_mm: f64,
+        /// Cover tilt \[deg\].
+        cover_tilt_deg: f64,
+        /// Mean gap between the brine surfaces and the cover \[mm\] (the internal
+        /// correlation's length).
+        mean_gap_mm: f64,
+        /// Evaporating area per m² of footprint [-].
+        evaporating_per_footprint: f64,
+        /// Whether the risers are wetted and evaporate.
+        wetted_risers: bool,
+        /// Base overall coefficient [W m⁻² K⁻¹].
+        base_u_w_m2_k: f64,
+    },
 }
 
 /// Energy booked over a month's (last) simulated day, per day [kWh].
@@ -473,7 +518,11 @@ impl Default for RunOptions {
 pub fn is_modelled(kind: &VariantKind) -> bool {
     matches!(
         kind,
-        VariantKind::SingleSlope(_) | VariantKind::Wick(_) | VariantKind::MultiEffect(_)
+        VariantKind::SingleSlope(_)
+            | VariantKind::DoubleSlope(_)
+            | VariantKind::Stepped(_)
+            | VariantKind::Wick(_)
+            | VariantKind::MultiEffect(_)
     )
 }
 
@@ -485,6 +534,18 @@ pub fn build_model(
 ) -> Result<Option<Box<dyn StillModel>>, Error> {
     match &variant.kind {
         VariantKind::SingleSlope(k) => Ok(Some(Box::new(SingleSlopeStill::new(
+            variant,
+            k,
+            &loaded.library,
+            weather.pressure_pa,
+        )?))),
+        VariantKind::DoubleSlope(k) => Ok(Some(Box::new(DoubleSlopeStill::new(
+            variant,
+            k,
+            &loaded.library,
+            weather.pressure_pa,
+        )?))),
+        VariantKind::Stepped(k) => Ok(Some(Box::new(SteppedStill::new(
             variant,
             k,
             &loaded.library,
@@ -502,7 +563,6 @@ pub fn build_model(
             &loaded.library,
             weather.pressure_pa,
         )?))),
-        _ => Ok(None),
     }
 }
 

@@ -89,7 +89,11 @@ pub struct SingleSlopeStill {
     details: KindDetails,
 }
 
-fn layers_of(layers: &[Layer], lib: &Library, field: &str) -> Result<Vec<(f64, f64)>, Error> {
+pub(crate) fn layers_of(
+    layers: &[Layer],
+    lib: &Library,
+    field: &str,
+) -> Result<Vec<(f64, f64)>, Error> {
     layers
         .iter()
         .map(|l| {
@@ -108,12 +112,93 @@ fn layers_of(layers: &[Layer], lib: &Library, field: &str) -> Result<Vec<(f64, f
         .collect()
 }
 
-fn net_error(variant: &str, e: &NetworkError) -> Error {
+pub(crate) fn net_error(variant: &str, e: &NetworkError) -> Error {
     Error::Model {
         variant: variant.to_owned(),
         at: String::new(),
         reason: format!("could not build the network: {e}"),
     }
+}
+
+/// Air properties of a basin still's humid enclosure, evaluated once at a 50 °C film half
+/// saturated with vapour (common practice, no source), with the site's total pressure
+/// `pressure_pa` \[Pa\] and the mean brine-to-cover gap `gap_m` \[m\] (at least 10 mm) as the
+/// characteristic length.
+pub fn enclosure_air(pressure_pa: f64, gap_m: f64) -> EnclosureAir {
+    let t_film_k = 323.15;
+    let p_v = 0.5 * water::saturation_pressure_pa(t_film_k);
+    let mu = humid_air::dynamic_viscosity_pa_s(t_film_k, p_v, pressure_pa);
+    let rho = humid_air::density_kg_m3(t_film_k, p_v, pressure_pa);
+    let k_air = humid_air::thermal_conductivity_w_m_k(t_film_k, p_v, pressure_pa);
+    let cp = humid_air::specific_heat_j_kg_k(p_v, pressure_pa);
+    EnclosureAir {
+        conductivity_w_m_k: k_air,
+        kinematic_viscosity_m2_s: mu / rho,
+        prandtl: mu * cp / k_air,
+        total_pressure_pa: pressure_pa,
+        characteristic_length_m: gap_m.max(0.01),
+    }
+}
+
+/// The physics correlation for a design's choice, with the cover tilt `tilt_rad` \[rad\]
+/// for Hollands' inclined enclosure (capped at its 75° validity limit).
+pub fn internal_correlation(choice: DesignCorrelation, tilt_rad: f64) -> InternalCorrelation {
+    match choice {
+        DesignCorrelation::Dunkle => InternalCorrelation::Dunkle,
+        DesignCorrelation::KumarTiwari => InternalCorrelation::KumarTiwari {
+            c: KUMAR_TIWARI_PASSIVE_C,
+            n: KUMAR_TIWARI_PASSIVE_N,
+        },
+        DesignCorrelation::InclinedEnclosure => InternalCorrelation::InclinedEnclosure {
+            tilt_rad: tilt_rad.clamp(0.0, 75f64.to_radians()),
+        },
+    }
+}
+
+/// Sky temperature for one record \[K\]: Berdahl & Martin's emissivity from the dew point
+/// when it comes from data, Swinbank's relation otherwise.
+pub fn sky_temperature_k(h: &crate::climate::HourlyWeather, dew_point_known: bool) -> f64 {
+    if dew_point_known {
+        sky_temperature_from_emissivity_k(berdahl_martin_sky_emissivity(h.t_dew_k), h.t_air_k)
+    } else {
+        swinbank_sky_temperature_k(h.t_air_k)
+    }
+}
+
+/// A cover's outside convection coefficient for one hour [W m⁻² K⁻¹]: Watmuff et al.'s
+/// wind coefficient ([`wind_convection_watmuff_w_m2_k`]) at the wind speed brought from the
+/// measurement height `wind_height_m` \[m\] to the cover's mean height `cover_height_m` \[m\]
+/// by the log law ([`wind_speed_at_height_m_s`]), combined by the cube sum
+/// ([`combined_convection_w_m2_k`]) with free convection of a plate of length
+/// `plate_length_m` \[m\] at tilt `tilt_rad` \[rad\]
+/// ([`natural_convection_tilted_plate_w_m2_k`]) at the cover temperature `t_cover_k` \[K\]
+/// given (lagged by the caller); `wind_m_s` [m s⁻¹], `t_air_k` \[K\].
+pub fn cover_outside_coefficient_w_m2_k(
+    wind_m_s: f64,
+    wind_height_m: f64,
+    t_air_k: f64,
+    t_cover_k: f64,
+    cover_height_m: f64,
+    tilt_rad: f64,
+    plate_length_m: f64,
+) -> f64 {
+    let v = wind_speed_at_height_m_s(wind_m_s, wind_height_m, cover_height_m, SITE_ROUGHNESS_M);
+    let forced = wind_convection_watmuff_w_m2_k(v);
+    let t_film = 0.5 * (t_air_k + t_cover_k);
+    let mu = humid_air::dry_air_viscosity_pa_s(t_film);
+    let k_air = humid_air::dry_air_thermal_conductivity_w_m_k(t_film);
+    let rho = 101_325.0 * crate::physics::constants::MOLAR_MASS_AIR_KG_MOL
+        / (crate::physics::constants::GAS_CONSTANT_J_MOL_K * t_film);
+    let natural = natural_convection_tilted_plate_w_m2_k(
+        t_cover_k,
+        t_air_k,
+        tilt_rad,
+        plate_length_m,
+        k_air,
+        mu / rho,
+        mu * humid_air::DRY_AIR_SPECIFIC_HEAT_J_KG_K / k_air,
+    );
+    combined_convection_w_m2_k(forced, natural)
 }
 
 impl SingleSlopeStill {
@@ -216,26 +301,8 @@ impl SingleSlopeStill {
         );
 
         // Inside: humid enclosure on the evaporating area, radiation brine → cover.
-        let t_film_k = 323.15;
-        let p_v = 0.5 * water::saturation_pressure_pa(t_film_k);
-        let mu = humid_air::dynamic_viscosity_pa_s(t_film_k, p_v, pressure_pa);
-        let rho = humid_air::density_kg_m3(t_film_k, p_v, pressure_pa);
-        let k_air = humid_air::thermal_conductivity_w_m_k(t_film_k, p_v, pressure_pa);
-        let cp = humid_air::specific_heat_j_kg_k(p_v, pressure_pa);
-        let air_props = EnclosureAir {
-            conductivity_w_m_k: k_air,
-            kinematic_viscosity_m2_s: mu / rho,
-            prandtl: mu * cp / k_air,
-            total_pressure_pa: pressure_pa,
-            characteristic_length_m: geom.mean_gap_m().max(0.01),
-        };
-        let correlation = match k.internal_correlation {
-            DesignCorrelation::Dunkle => InternalCorrelation::Dunkle,
-            DesignCorrelation::KumarTiwari => InternalCorrelation::KumarTiwari {
-                c: KUMAR_TIWARI_PASSIVE_C,
-                n: KUMAR_TIWARI_PASSIVE_N,
-            },
-        };
+        let air_props = enclosure_air(pressure_pa, geom.mean_gap_m());
+        let correlation = internal_correlation(k.internal_correlation, tilt);
         b.enclosure(
             "brine to cover",
             brine,
@@ -386,28 +453,15 @@ impl SingleSlopeStill {
         t_air_k: f64,
         t_cover_k: f64,
     ) -> f64 {
-        let v = wind_speed_at_height_m_s(
+        cover_outside_coefficient_w_m2_k(
             wind_m_s,
             wind_height_m,
-            self.cover_height_m,
-            SITE_ROUGHNESS_M,
-        );
-        let forced = wind_convection_watmuff_w_m2_k(v);
-        let t_film = 0.5 * (t_air_k + t_cover_k);
-        let mu = humid_air::dry_air_viscosity_pa_s(t_film);
-        let k_air = humid_air::dry_air_thermal_conductivity_w_m_k(t_film);
-        let rho = 101_325.0 * crate::physics::constants::MOLAR_MASS_AIR_KG_MOL
-            / (crate::physics::constants::GAS_CONSTANT_J_MOL_K * t_film);
-        let natural = natural_convection_tilted_plate_w_m2_k(
-            t_cover_k,
             t_air_k,
+            t_cover_k,
+            self.cover_height_m,
             self.tilt_rad,
             self.plate_length_m,
-            k_air,
-            mu / rho,
-            mu * humid_air::DRY_AIR_SPECIFIC_HEAT_J_KG_K / k_air,
-        );
-        combined_convection_w_m2_k(forced, natural)
+        )
     }
 
     /// The loss switches in force.
@@ -489,11 +543,7 @@ impl StillModel for SingleSlopeStill {
         let h = ctx.weather;
         let net = &self.net;
         let t_air = h.t_air_k;
-        let t_sky = if ctx.dew_point_known {
-            sky_temperature_from_emissivity_k(berdahl_martin_sky_emissivity(h.t_dew_k), t_air)
-        } else {
-            swinbank_sky_temperature_k(t_air)
-        };
+        let t_sky = sky_temperature_k(h, ctx.dew_point_known);
         inputs.set_boundary_k(net, self.air, t_air)?;
         inputs.set_boundary_k(net, self.sky, t_sky)?;
         inputs.set_boundary_k(net, self.ground, ctx.ground_k)?;

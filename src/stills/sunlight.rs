@@ -231,13 +231,45 @@ impl StillOptics {
     /// taken to leave through the cover (a simplification: part of it would be absorbed on
     /// the way).
     pub fn split(&self, poa: &PlaneIrradiance, sun: SunPosition) -> SunlightSplit {
+        let through = self.through_cover(poa);
+        if through.incident_w <= 0.0 {
+            return SunlightSplit::default();
+        }
+        let (beam_share, diffuse_share) = if self.switches.walls {
+            (
+                beam_brine_share(&self.geom, sun, self.cover_azimuth_rad),
+                diffuse_brine_share(&self.geom),
+            )
+        } else {
+            (1.0, 1.0)
+        };
+        let on_brine_beam = through.entering_beam_w * beam_share;
+        let on_brine_diffuse = through.entering_diffuse_w * diffuse_share;
+        let on_walls = through.entering_w() - on_brine_beam - on_brine_diffuse;
+        let walls_w = on_walls * self.liner_absorptance;
+        let (brine_w, liner_w) = self.into_brine(on_brine_beam, on_brine_diffuse, sun);
+        let lost = through.incident_w - through.cover_w - brine_w - liner_w - walls_w;
+        SunlightSplit {
+            incident_w: through.incident_w,
+            entering_w: through.entering_w(),
+            cover_w: through.cover_w,
+            brine_w,
+            liner_w,
+            walls_w,
+            lost_w: lost,
+        }
+    }
+
+    /// The first half of [`StillOptics::split`]: what the cover reflects, absorbs and lets
+    /// in (beam and diffuse separately), after dust and condensate [W].
+    pub fn through_cover(&self, poa: &PlaneIrradiance) -> ThroughCover {
         let a = self.cover_area_m2;
         let beam = poa.beam_w_m2.max(0.0) * a;
         let sky = poa.sky_diffuse_w_m2.max(0.0) * a;
         let ground = poa.ground_w_m2.max(0.0) * a;
         let incident = beam + sky + ground;
         if incident <= 0.0 {
-            return SunlightSplit::default();
+            return ThroughCover::default();
         }
         let theta_beam = poa.cos_incidence.clamp(-1.0, 1.0).acos();
         let (th_sky, th_ground) = diffuse_equivalent_incidence_rad(self.geom.tilt_rad);
@@ -258,27 +290,36 @@ impl StillOptics {
         let through_diffuse = sky * ts + ground * tg;
         let mut cover_w = beam * ab + sky * as_ + ground * ag;
         let after_dust = (through_beam + through_diffuse) * dust;
-        let entering_beam = through_beam * dust * wet;
-        let entering_diffuse = through_diffuse * dust * wet;
         if !self.condensate_drops {
             // A film absorbs what it stops.
             cover_w += after_dust * (1.0 - wet);
         }
-        let entering = entering_beam + entering_diffuse;
+        ThroughCover {
+            incident_w: incident,
+            cover_w,
+            entering_beam_w: through_beam * dust * wet,
+            entering_diffuse_w: through_diffuse * dust * wet,
+        }
+    }
 
-        let (beam_share, diffuse_share) = if self.switches.walls {
-            (
-                beam_brine_share(&self.geom, sun, self.cover_azimuth_rad),
-                diffuse_brine_share(&self.geom),
-            )
-        } else {
-            (1.0, 1.0)
-        };
-        let on_brine_beam = entering_beam * beam_share;
-        let on_brine_diffuse = entering_diffuse * diffuse_share;
-        let on_walls = entering - on_brine_beam - on_brine_diffuse;
-        let walls_w = on_walls * self.liner_absorptance;
+    /// Share of light that reaches the cover's inside from below and is absorbed there
+    /// (light crossing a double slope's enclosure to the far face) [-]: the cover's
+    /// absorptance at Brandemuehl & Beckman's sky-diffuse equivalent angle for its tilt.
+    ///
+    /// Notes: a stated simplification (no source) — the light arrives from a spread of
+    /// directions, so one diffuse-equivalent angle is used for beam and diffuse alike; what
+    /// the cover does not absorb is taken to leave the still (its inward reflection, a few
+    /// per cent, is neglected).
+    pub fn far_cover_absorptance(&self) -> f64 {
+        let (th_sky, _) = diffuse_equivalent_incidence_rad(self.geom.tilt_rad);
+        self.cover(th_sky).1
+    }
 
+    /// The second half of [`StillOptics::split`]: beam and diffuse light reaching the water
+    /// surface [W] into what the brine and the floor under it absorb [W] (Fresnel reflection
+    /// at the water, then Rabl & Nielsen's depth split along the refracted path; the floor
+    /// absorbs its share of what reaches it, the remainder leaves).
+    pub fn into_brine(&self, beam_w: f64, diffuse_w: f64, sun: SunPosition) -> (f64, f64) {
         let (zen_water, zen_diffuse) = if self.switches.angle_reflection {
             (
                 sun.zenith_rad.clamp(0.0, 89.0_f64.to_radians()),
@@ -289,7 +330,7 @@ impl StillOptics {
         };
         let mut brine_w = 0.0;
         let mut liner_w = 0.0;
-        for (power, theta) in [(on_brine_beam, zen_water), (on_brine_diffuse, zen_diffuse)] {
+        for (power, theta) in [(beam_w, zen_water), (diffuse_w, zen_diffuse)] {
             if power <= 0.0 {
                 continue;
             }
@@ -300,16 +341,325 @@ impl StillOptics {
             brine_w += into * f;
             liner_w += into * (1.0 - f) * self.liner_absorptance;
         }
-        let lost = incident - cover_w - brine_w - liner_w - walls_w;
-        SunlightSplit {
-            incident_w: incident,
-            entering_w: entering,
-            cover_w,
-            brine_w,
-            liner_w,
-            walls_w,
-            lost_w: lost,
+        (brine_w, liner_w)
+    }
+}
+
+/// Sunlight on one cover, split by [`StillOptics::through_cover`] [W].
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct ThroughCover {
+    /// Incident on the cover.
+    pub incident_w: f64,
+    /// Absorbed by the cover (and its condensate film).
+    pub cover_w: f64,
+    /// Beam entering the enclosure.
+    pub entering_beam_w: f64,
+    /// Diffuse (sky and ground) entering the enclosure.
+    pub entering_diffuse_w: f64,
+}
+
+impl ThroughCover {
+    /// Everything entering the enclosure [W].
+    pub fn entering_w(&self) -> f64 {
+        self.entering_beam_w + self.entering_diffuse_w
+    }
+}
+
+/// Where light entering an enclosure goes, as shares of it [-] (they sum to 1).
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct InsideShares {
+    /// Reaching the water surface (a tray's free surface for a stepped still).
+    pub water: f64,
+    /// Reaching the risers between trays (stepped still; 0 otherwise).
+    pub risers: f64,
+    /// Reaching the far face from inside (double slope; 0 otherwise).
+    pub far_cover: f64,
+    /// Caught by side, front, back and end walls.
+    pub walls: f64,
+}
+
+/// Cross-section of a double-slope (gable) enclosure above the brine: two faces of equal
+/// tilt meeting at a ridge over the middle of the width.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct GableSection {
+    /// Eave-to-eave size of the basin W \[m\].
+    pub width_m: f64,
+    /// Length along the ridge L \[m\].
+    pub length_m: f64,
+    /// Tilt of both faces β \[rad\].
+    pub tilt_rad: f64,
+    /// Side wall above the brine under each eave h_s \[m\] (≥ 0).
+    pub eave_above_brine_m: f64,
+}
+
+impl GableSection {
+    /// Mean height of the cover above the brine h_s + (W/4)·tan β \[m\].
+    pub fn mean_gap_m(&self) -> f64 {
+        self.eave_above_brine_m + 0.25 * self.width_m * self.tilt_rad.tan()
+    }
+
+    /// Inner wall area above the brine: two side walls and two gable ends \[m²\].
+    pub fn wall_area_m2(&self) -> f64 {
+        let hs = self.eave_above_brine_m.max(0.0);
+        let w = self.width_m;
+        2.0 * hs * self.length_m + 2.0 * (hs * w + 0.25 * w * w * self.tilt_rad.tan())
+    }
+}
+
+/// Share of an end-wall (gable) interception, h̄·|s_l|/(s_z·L), as in [`beam_brine_share`].
+fn end_wall_share(mean_gap_m: f64, s_l: f64, s_z: f64, length_m: f64) -> f64 {
+    if length_m > 0.0 {
+        (mean_gap_m * s_l.abs() / (s_z * length_m)).clamp(0.0, 1.0)
+    } else {
+        1.0
+    }
+}
+
+/// Number of entry points the double-slope beam trace averages over.
+const GABLE_TRACE_POINTS: usize = 64;
+
+/// Where the beam entering through one face of a double slope goes [-].
+///
+/// Derivation (2-D ray geometry in the cross-section, our own, as for
+/// [`beam_brine_share`]): x runs from this face's eave (x = 0) over the ridge (W/2) to the
+/// far eave (x = W); the cover is h_s + x·tan β above the brine on this side and
+/// h_s + (W − x)·tan β on the far side. A ray entering at x₀ (height H₀) descends with
+/// k = s_f/s_z horizontal per vertical. For k ≥ 0 it lands at x′ = x₀ + k·H₀; if
+/// k·tan β > 1 (sun lower than the far face is steep) it meets the far face at
+/// x_B = (H₀ + x₀/k − h_s − W tan β)/(1/k − tan β) and leaves through it when x_B ≤ W;
+/// otherwise it reaches the brine when x′ ≤ W and the far side wall when x′ > W. For k < 0
+/// it reaches the brine when x′ ≥ 0 and the near side wall otherwise. The entry points are
+/// spread evenly over the face (midpoint rule, [`GABLE_TRACE_POINTS`] points); the gable ends
+/// take h̄·|s_l|/(s_z·L) of the rest, as in [`beam_brine_share`].
+///
+/// * `g` — the section; `sun` — sun position; `face_azimuth_rad` — direction this face
+///   faces \[rad\], clockwise from north
+///
+/// Returns the shares (all 0 when no beam enters this face).
+pub fn gable_beam_shares(
+    g: &GableSection,
+    sun: SunPosition,
+    face_azimuth_rad: f64,
+) -> InsideShares {
+    let s_z = sun.zenith_rad.cos();
+    let w = g.width_m;
+    if s_z <= 1e-6 || w <= 0.0 {
+        return InsideShares::default();
+    }
+    let d_az = sun.azimuth_rad - face_azimuth_rad;
+    let s_f = sun.zenith_rad.sin() * d_az.cos();
+    let s_l = sun.zenith_rad.sin() * d_az.sin();
+    let k = s_f / s_z;
+    let t = g.tilt_rad.tan();
+    if 1.0 + k * t <= 1e-9 {
+        return InsideShares::default();
+    }
+    let hs = g.eave_above_brine_m.max(0.0);
+    let (mut water, mut far) = (0.0, 0.0);
+    let n = GABLE_TRACE_POINTS;
+    for i in 0..n {
+        let x0 = (i as f64 + 0.5) / n as f64 * 0.5 * w;
+        let h0 = hs + x0 * t;
+        let x_land = x0 + k * h0;
+        if k > 0.0 {
+            let slope = 1.0 / k - t;
+            if slope < 0.0 {
+                let x_b = (h0 + x0 / k - hs - w * t) / slope;
+                if x_b <= w {
+                    far += 1.0;
+                    continue;
+                }
+            }
+            if x_land <= w {
+                water += 1.0;
+            }
+        } else if x_land >= 0.0 {
+            water += 1.0;
         }
+    }
+    let keep = 1.0 - end_wall_share(g.mean_gap_m(), s_l, s_z, g.length_m);
+    let water = water / n as f64 * keep;
+    let far_cover = far / n as f64 * keep;
+    InsideShares {
+        water,
+        risers: 0.0,
+        far_cover,
+        walls: (1.0 - water - far_cover).max(0.0),
+    }
+}
+
+/// Where diffuse light entering through one face of a double slope goes [-].
+///
+/// Hottel's crossed strings (Modest, *Radiative Heat Transfer*, 3rd ed., §4.5; from memory)
+/// in the 2-D section, face width a = W/(2 cos β): to the far face, two strips of width a
+/// meeting at the ridge with their far edges W apart, F = (2a − W)/(2a) = 1 − cos β; to the
+/// brine, F = (√(W² + h_s²) − h_s)/(2a) (the two strings from the ridge cancel); the side
+/// walls take the rest.
+///
+/// Notes: as in [`diffuse_brine_share`], the entering light is taken as isotropic and the
+/// gable ends are ignored (2-D).
+pub fn gable_diffuse_shares(g: &GableSection) -> InsideShares {
+    let w = g.width_m;
+    if w <= 0.0 {
+        return InsideShares::default();
+    }
+    let hs = g.eave_above_brine_m.max(0.0);
+    let a = 0.5 * w / g.tilt_rad.cos();
+    let far_cover = (1.0 - g.tilt_rad.cos()).clamp(0.0, 1.0);
+    let water = (((w * w + hs * hs).sqrt() - hs) / (2.0 * a)).clamp(0.0, 1.0 - far_cover);
+    InsideShares {
+        water,
+        risers: 0.0,
+        far_cover,
+        walls: (1.0 - water - far_cover).max(0.0),
+    }
+}
+
+/// Cross-section of a stepped (tray) still above the brine: `trays` trays of equal tread
+/// W/N, each `riser_m` above the one in front, under one cover at tilt β.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct StairSection {
+    /// Front-to-back size W \[m\].
+    pub width_m: f64,
+    /// Length along the trays L \[m\].
+    pub length_m: f64,
+    /// Cover tilt β \[rad\].
+    pub tilt_rad: f64,
+    /// Cover above the first tray's brine at the front h_f \[m\] (≥ 0).
+    pub front_above_brine_m: f64,
+    /// Number of trays N (≥ 1).
+    pub trays: u32,
+    /// Rise from one tray to the next r \[m\].
+    pub riser_m: f64,
+}
+
+impl StairSection {
+    /// Tangent of the mean slope of the brine surfaces, tan α = (N − 1)·r/W, capped at the
+    /// cover's tan β (validation keeps the steps under the cover).
+    pub fn floor_slope(&self) -> f64 {
+        if self.width_m <= 0.0 {
+            return 0.0;
+        }
+        let n = f64::from(self.trays.max(1));
+        ((n - 1.0) * self.riser_m / self.width_m).clamp(0.0, self.tilt_rad.tan().max(0.0))
+    }
+
+    /// Cover above the last tray's brine at the back h_b = h_f + W·(tan β − tan α) \[m\].
+    pub fn back_above_brine_m(&self) -> f64 {
+        self.front_above_brine_m + self.width_m * (self.tilt_rad.tan() - self.floor_slope())
+    }
+
+    /// Mean gap between the brine surfaces and the cover (h_f + h_b)/2 \[m\].
+    pub fn mean_gap_m(&self) -> f64 {
+        0.5 * (self.front_above_brine_m + self.back_above_brine_m())
+    }
+
+    /// Inner wall area above the brine: front, back and the two end walls \[m²\].
+    pub fn wall_area_m2(&self) -> f64 {
+        let hf = self.front_above_brine_m.max(0.0);
+        let hb = self.back_above_brine_m().max(0.0);
+        (hf + hb) * self.length_m + (hf + hb) * self.width_m
+    }
+
+    /// Exposed riser area facing the cover, (N − 1)·r·L \[m²\].
+    pub fn riser_area_m2(&self) -> f64 {
+        f64::from(self.trays.max(1) - 1) * self.riser_m * self.length_m
+    }
+}
+
+/// Where the beam entering a stepped still's cover goes [-].
+///
+/// Derivation (2-D, our own, extending [`beam_brine_share`]): replace the flat brine by the
+/// mean line of the steps, y = x·tan α. A ray entering at x (cover height h_f + x tan β)
+/// with k = s_f/s_z lands on that line at x′ = [x(1 + k tan β) + k h_f]/(1 + k tan α); for
+/// k > 0 the rays landing before the back wall enter at x ≤ [W(1 + k tan α) − k h_f]/
+/// (1 + k tan β) (α = 0 gives the flat-basin bound); for k < 0 the bound at the front wall
+/// is unchanged. On the steps themselves, one step of tread t and riser r_e = t tan α
+/// intercepts beam in proportion to its projection s_z t + s_f r_e, so the risers (facing
+/// the sun when k > 0) take k tan α/(1 + k tan α) of it and nothing when k ≤ 0, and the
+/// treads are not shaded. End walls as in [`beam_brine_share`].
+///
+/// * `g` — the section; `sun` — sun position; `cover_azimuth_rad` — direction the cover
+///   faces \[rad\]
+///
+/// Notes: the N − 1 real risers are spread evenly over the N treads (r_e = (N − 1) r / N),
+/// so one tray gives exactly [`beam_brine_share`].
+pub fn stair_beam_shares(
+    g: &StairSection,
+    sun: SunPosition,
+    cover_azimuth_rad: f64,
+) -> InsideShares {
+    let s_z = sun.zenith_rad.cos();
+    let w = g.width_m;
+    if s_z <= 1e-6 || w <= 0.0 {
+        return InsideShares::default();
+    }
+    let d_az = sun.azimuth_rad - cover_azimuth_rad;
+    let s_f = sun.zenith_rad.sin() * d_az.cos();
+    let s_l = sun.zenith_rad.sin() * d_az.sin();
+    let k = s_f / s_z;
+    let tb = g.tilt_rad.tan();
+    let ta = g.floor_slope();
+    let slope = 1.0 + k * tb;
+    if slope <= 1e-9 {
+        return InsideShares::default();
+    }
+    let hf = g.front_above_brine_m.max(0.0);
+    let landing = if k >= 0.0 {
+        ((w * (1.0 + k * ta) - hf * k) / slope).clamp(0.0, w)
+    } else {
+        (w - (-hf * k / slope)).clamp(0.0, w)
+    };
+    let keep = 1.0 - end_wall_share(g.mean_gap_m(), s_l, s_z, g.length_m);
+    let on_steps = landing / w * keep;
+    let riser_part = if k > 0.0 {
+        k * ta / (1.0 + k * ta)
+    } else {
+        0.0
+    };
+    InsideShares {
+        water: on_steps * (1.0 - riser_part),
+        risers: on_steps * riser_part,
+        far_cover: 0.0,
+        walls: (1.0 - on_steps).max(0.0),
+    }
+}
+
+/// Where diffuse light entering a stepped still's cover goes [-].
+///
+/// Hottel's crossed strings (Modest, §4.5; from memory) twice: from the cover to the mean
+/// step line, F = [√(W² + (h_f − W tan α)²) + √(W² + (h_f + W tan β)²) − h_f − h_b]/(2c)
+/// with c = W/cos β (α = 0 gives [`diffuse_brine_share`]); then within one step, from the
+/// step line (hypotenuse c_s = √(t² + r_e²)) to the riser, (c_s + r_e − t)/(2c_s), the
+/// tread taking the rest.
+///
+/// Notes: isotropic entering light and no end walls, as in [`diffuse_brine_share`].
+pub fn stair_diffuse_shares(g: &StairSection) -> InsideShares {
+    let w = g.width_m;
+    if w <= 0.0 {
+        return InsideShares::default();
+    }
+    let tb = g.tilt_rad.tan();
+    let ta = g.floor_slope();
+    let hf = g.front_above_brine_m.max(0.0);
+    let hb = g.back_above_brine_m().max(0.0);
+    let c = w / g.tilt_rad.cos();
+    let d1 = (w * w + (hf - w * ta).powi(2)).sqrt();
+    let d2 = (w * w + (hf + w * tb).powi(2)).sqrt();
+    let on_steps = (((d1 + d2) - (hf + hb)) / (2.0 * c)).clamp(0.0, 1.0);
+    let t = w / f64::from(g.trays.max(1));
+    let r_e = t * ta;
+    let c_s = (t * t + r_e * r_e).sqrt();
+    let riser_part = if c_s > 0.0 {
+        ((c_s + r_e - t) / (2.0 * c_s)).clamp(0.0, 1.0)
+    } else {
+        0.0
+    };
+    InsideShares {
+        water: on_steps * (1.0 - riser_part),
+        risers: on_steps * riser_part,
+        far_cover: 0.0,
+        walls: 1.0 - on_steps,
     }
 }
 
@@ -456,5 +806,89 @@ mod tests {
             ..geom()
         };
         assert!((diffuse_brine_share(&g) - 0.92319).abs() < 1e-4);
+    }
+
+    fn gable() -> GableSection {
+        GableSection {
+            width_m: 1.4,
+            length_m: 3.0,
+            tilt_rad: 20f64.to_radians(),
+            eave_above_brine_m: 0.12,
+        }
+    }
+
+    #[test]
+    fn gable_diffuse_shares_follow_the_crossed_strings() {
+        // Hand calculation from the doc-comment formulas: a = 0.7/cos 20° = 0.74494;
+        // far face 1 − cos 20° = 0.06031; brine (√(1.96 + 0.0144) − 0.12)/(2a) = 0.86259.
+        let s = gable_diffuse_shares(&gable());
+        assert!((s.far_cover - 0.06031).abs() < 1e-4, "{s:?}");
+        assert!((s.water - 0.86259).abs() < 1e-4, "{s:?}");
+        assert!((s.water + s.far_cover + s.walls - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn gable_beam_from_overhead_lands_on_the_brine_and_low_sun_crosses_to_the_far_face() {
+        // Geometry: a vertical ray lands straight below its entry point (exact).
+        let east = std::f64::consts::FRAC_PI_2;
+        let overhead = SunPosition {
+            zenith_rad: 0.0,
+            azimuth_rad: east,
+        };
+        let s = gable_beam_shares(&gable(), overhead, east);
+        assert!((s.water - 1.0).abs() < 1e-12);
+        // Sun due east at 80° zenith (k = 5.67, k·tan 20° = 2.06 > 1): rays entering the
+        // east face near the ridge meet the west face before the brine (doc-comment rule).
+        let low = SunPosition {
+            zenith_rad: 80f64.to_radians(),
+            azimuth_rad: east,
+        };
+        let s = gable_beam_shares(&gable(), low, east);
+        assert!(s.far_cover > 0.3, "{s:?}");
+        assert!((s.water + s.far_cover + s.walls - 1.0).abs() < 1e-12);
+    }
+
+    #[test]
+    fn one_tray_gives_the_flat_basin_shares() {
+        // With one tray the stair rules reduce to the flat-basin ones (tan α = 0).
+        let sun = SunPosition {
+            zenith_rad: 50f64.to_radians(),
+            azimuth_rad: 3.5,
+        };
+        let g = geom();
+        let stair = StairSection {
+            width_m: g.width_m,
+            length_m: g.length_m,
+            tilt_rad: g.tilt_rad,
+            front_above_brine_m: g.front_above_brine_m,
+            trays: 1,
+            riser_m: 0.03,
+        };
+        let b = stair_beam_shares(&stair, sun, std::f64::consts::PI);
+        let flat = beam_brine_share(&g, sun, std::f64::consts::PI);
+        assert!((b.water - flat).abs() < 1e-12 && b.risers.abs() < 1e-15);
+        let d = stair_diffuse_shares(&stair);
+        assert!((d.water - diffuse_brine_share(&g)).abs() < 1e-12);
+    }
+
+    #[test]
+    fn risers_take_k_tan_alpha_over_one_plus_k_tan_alpha_of_the_beam_on_the_steps() {
+        // 4 trays on 1 m, 40 mm risers: tan α = 3·0.04/1 = 0.12; sun due south at 45°
+        // (k = 1): risers take 0.12/1.12 = 0.10714 of the beam landing on the steps.
+        let stair = StairSection {
+            width_m: 1.0,
+            length_m: 2.0,
+            tilt_rad: 20f64.to_radians(),
+            front_above_brine_m: 0.07,
+            trays: 4,
+            riser_m: 0.04,
+        };
+        let sun = SunPosition {
+            zenith_rad: 45f64.to_radians(),
+            azimuth_rad: std::f64::consts::PI,
+        };
+        let s = stair_beam_shares(&stair, sun, std::f64::consts::PI);
+        let on_steps = s.water + s.risers;
+        assert!((s.risers / on_steps - 0.10714).abs() < 1e-4, "{s:?}");
     }
 }

@@ -9,5 +9,7 @@ mod physics_sun;
 mod physics_transfer;
 mod physics_water;
 mod stills;
+mod stills_double_slope;
 mod stills_multi_effect;
+mod stills_stepped;
 mod stills_wick;
