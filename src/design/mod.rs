@@ -43,6 +43,7 @@ pub use schema::{
     WeatherFile, WeatherFormat, Wick,
 };
 pub use summary::write_summary;
+pub use validate::basin_of;
 
 /// One problem found in a design file or a file it references.
 #[derive(Debug, Clone, PartialEq)]

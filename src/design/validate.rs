@@ -1147,7 +1147,7 @@ fn item_properties(r: &mut Reader<'_>, p: &str, it: &Item) {
 
 /// Set depth [mm] and free brine surface [m²] of a basin kind, `None` for kinds fed by a
 /// continuous flow (wick, multi-effect).
-pub(crate) fn basin_of(v: &Variant) -> Option<(f64, f64)> {
+pub fn basin_of(v: &Variant) -> Option<(f64, f64)> {
     let plan = v.width_m * v.length_m;
     match &v.kind {
         VariantKind::SingleSlope(k) => Some((k.brine_depth_mm, plan)),

@@ -8,11 +8,13 @@
 //! driver's job, not the variant's.
 
 mod controller;
+mod sweep;
 
 use serde::Serialize;
 
 pub use crate::design::{FeedMode, FlushMode, Operation};
 pub use controller::{LevelController, Tuning, basin_process_gain, pi_gain_limit_l_h_mm};
+pub use sweep::{DepthPoint, depth_sweep, with_depth};
 
 use crate::network::SALT_SATURATION_G_KG;
 
