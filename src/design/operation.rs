@@ -13,8 +13,8 @@ pub enum FeedMode {
     /// The operator tops the basin up to the set depth by hand at the listed hours.
     #[default]
     Batch,
-    /// A float valve opens when the depth falls to the bottom of its band and closes at the
-    /// top.
+    /// A float valve: full flow with the depth at the bottom of its band, shut at the top,
+    /// throttled linearly between (a float is a proportional valve).
     FloatValve,
     /// A steady drip at a set rate; brine above the set depth leaves over an overflow lip.
     Drip,
@@ -44,10 +44,12 @@ pub enum FlushMode {
     /// A fixed volume each day (`flush_l_day`).
     Daily,
     /// Drain (ratio − 1) × the distillate collected since the last flush, so that feed ÷
-    /// distillate ≈ `flush_ratio` (default).
+    /// distillate ≈ `flush_ratio` (default): once a day before the first refill of a batch
+    /// feed, as a steady bleed (every control interval) with the other feed modes.
     #[default]
     Ratio,
-    /// Drain the basin to the wetting depth whenever the salinity reaches `flush_limit_g_kg`.
+    /// Drain the basin to 1.5 × the wetting depth whenever the salinity reaches
+    /// `flush_limit_g_kg`.
     SalinityLimit,
 }
 

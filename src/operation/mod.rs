@@ -110,7 +110,6 @@ pub struct Operator {
     set_kg: f64,
     set_mm: f64,
     controller: Option<LevelController>,
-    valve_open: bool,
     distillate_since_flush_kg: f64,
     refill_next: bool,
     clock_s: f64,
@@ -130,7 +129,6 @@ impl Operator {
             set_kg,
             set_mm: set_kg / area_m2.max(1e-9),
             controller,
-            valve_open: false,
             distillate_since_flush_kg: 0.0,
             refill_next: false,
             clock_s: 0.0,
@@ -175,7 +173,9 @@ impl Operator {
     pub fn act(&mut self, start_h: f64, dt_s: f64, view: &BasinView) -> (Action, bool) {
         let op = &self.op;
         let dt_h = dt_s / 3600.0;
-        let wet_kg = op.wetting_depth_mm * self.area_m2;
+        // A flush never drains below 1.5 × the wetting depth, so the liner stays wet while it
+        // refills (common practice, no source).
+        let wet_kg = 1.5 * op.wetting_depth_mm * self.area_m2;
         let above_wet = (view.brine_kg - wet_kg).max(0.0);
         // Flush first: the brine goes out before fresh feed comes in.
         let flush_time = match op.feed {
@@ -183,10 +183,14 @@ impl Operator {
             _ => Some(op.flush_hour),
         }
         .is_some_and(|h| within(h, start_h, dt_h));
+        // With a valve, controller or drip the ratio flush is a steady bleed: each interval
+        // drains (ratio − 1) × the distillate of the interval before, so the level stays in
+        // hand; a batch feed flushes once a day before its first refill.
+        let bleed = op.flush == FlushMode::Ratio && op.feed != FeedMode::Batch;
         let mut drain_kg = match op.flush {
             FlushMode::None => 0.0,
             FlushMode::Daily if flush_time => op.flush_l_day.unwrap_or(0.0) * KG_PER_L,
-            FlushMode::Ratio if flush_time => {
+            FlushMode::Ratio if bleed || flush_time => {
                 (op.flush_ratio - 1.0) * self.distillate_since_flush_kg
             }
             FlushMode::SalinityLimit => {
@@ -201,8 +205,8 @@ impl Operator {
             _ => 0.0,
         };
         drain_kg = drain_kg.min(above_wet);
-        let flushed = drain_kg > 0.0;
-        if flush_time || flushed {
+        let flushed = drain_kg > 0.0 && !bleed;
+        if flush_time || drain_kg > 0.0 || bleed {
             self.distillate_since_flush_kg = 0.0;
         }
         let after_drain = view.brine_kg - drain_kg;
@@ -218,22 +222,12 @@ impl Operator {
                 }
             }
             FeedMode::FloatValve => {
-                let (open_mm, close_mm) = (
-                    self.set_mm - 0.5 * op.band_mm,
-                    self.set_mm + 0.5 * op.band_mm - 0.1 * op.band_mm,
-                );
+                // A float throttles the valve: full flow with the depth at the bottom of the
+                // band, shut at the top, linear between (a proportional valve).
                 let depth = view.depth_mm - drain_kg / self.area_m2;
-                if depth <= open_mm {
-                    self.valve_open = true;
-                } else if depth >= close_mm {
-                    self.valve_open = false;
-                }
-                if self.valve_open {
-                    let top_kg = (self.set_mm + 0.5 * op.band_mm) * self.area_m2;
-                    feed_kg = (top_kg - after_drain)
-                        .max(0.0)
-                        .min(op.valve_max_l_h * KG_PER_L * dt_h);
-                }
+                let opening =
+                    ((self.set_mm + 0.5 * op.band_mm - depth) / op.band_mm).clamp(0.0, 1.0);
+                feed_kg = opening * op.valve_max_l_h * KG_PER_L * dt_h;
             }
             FeedMode::Drip => {
                 feed_kg = op.drip_l_h.unwrap_or(0.0) * KG_PER_L * dt_h;
