@@ -15,6 +15,7 @@ pub mod design;
 pub mod economics;
 pub mod error;
 pub mod network;
+pub mod operation;
 pub mod output;
 pub mod physics;
 pub mod stills;

@@ -7,6 +7,7 @@ use stillbench::ExitCode;
 mod check;
 mod climate;
 mod cost;
+mod operate;
 mod simulate;
 
 /// Design, simulate and compare solar water stills for one site and the materials a local
@@ -35,6 +36,9 @@ enum Command {
     Simulate(simulate::SimulateArgs),
     /// Bill of materials, cut list, build complexity and cost per litre of each variant.
     Cost(cost::CostArgs),
+    /// Feed, brine depth, salinity and flushing of each basin still over the day, and a
+    /// depth study (`--depth-sweep 5..100`).
+    Operate(operate::OperateArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -45,6 +49,7 @@ pub fn main() -> std::process::ExitCode {
         Command::Climate(args) => climate::run(&args),
         Command::Simulate(args) => simulate::run(&args),
         Command::Cost(args) => cost::run(&args),
+        Command::Operate(args) => operate::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),

@@ -16,6 +16,7 @@ use std::path::{Path, PathBuf};
 mod climate_inputs;
 mod costs;
 mod library;
+mod operation;
 mod parse;
 mod reader;
 mod schema;
@@ -29,6 +30,11 @@ pub use library::{
     Condensate, CoverProps, InsulationProps, Item, Library, LibraryHeader, PlateProps, ROLE_NAMES,
     Role, Stock, SurfaceProps, Unit, WickProps,
 };
+pub use operation::{
+    DEFAULT_BAND_MM, DEFAULT_CONTROL_INTERVAL_S, DEFAULT_DELAY_S, DEFAULT_FLUSH_HOUR,
+    DEFAULT_FLUSH_RATIO, DEFAULT_REFILL_HOURS, DEFAULT_VALVE_MAX_L_H, DEFAULT_WETTING_DEPTH_MM,
+    FeedMode, FlushMode, Operation, OperationIssue,
+};
 pub use schema::{
     BasinKind, Climate, Columns, DAYS_IN_MONTH, DEFAULT_LITRES_PER_PERSON_DAY, DEFAULT_RH_PERCENT,
     DEFAULT_SOILING_TRANSMITTANCE, Demand, Design, DoubleSlope, GapFill, HorizonPoint, Humidity,
@@ -37,6 +43,7 @@ pub use schema::{
     WeatherFile, WeatherFormat, Wick,
 };
 pub use summary::write_summary;
+pub use validate::basin_of;
 
 /// One problem found in a design file or a file it references.
 #[derive(Debug, Clone, PartialEq)]

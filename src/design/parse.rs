@@ -108,6 +108,8 @@ pub(crate) fn parse_design(
     }
     if let Some(v) = &variants {
         validate::variants(&mut r, v, library.as_ref().map(|(l, _)| l));
+        let feed_g_kg = site.as_ref().map_or(35.0, |s| s.feed_salinity_g_kg);
+        validate::operations(&mut r, v, feed_g_kg);
     }
 
     let mut issues = r.issues;
@@ -435,6 +437,7 @@ fn read_variant(r: &mut Reader<'_>, v: &Spanned<DeValue<'_>>, path: &str) -> Opt
         length_m: f.length_m,
         cover_azimuth_deg: f.cover_azimuth_deg,
         cover: f.cover,
+        operation: f.operation,
         kind,
     })
 }

@@ -336,6 +336,8 @@ pub struct Variant {
     pub cover: String,
     /// Kind-specific data.
     pub kind: VariantKind,
+    /// `[variant.operation]`: feed and flush of a basin still (defaults when absent).
+    pub operation: Option<super::operation::Operation>,
 }
 
 /// The fields every variant has, as serde reads them.
@@ -347,16 +349,19 @@ pub(crate) struct VariantFields {
     pub length_m: f64,
     pub cover_azimuth_deg: f64,
     pub cover: String,
+    #[serde(default)]
+    pub operation: Option<super::operation::Operation>,
 }
 
 /// The names of [`VariantFields`], plus `kind`.
-pub(crate) const VARIANT_COMMON_FIELDS: [&str; 6] = [
+pub(crate) const VARIANT_COMMON_FIELDS: [&str; 7] = [
     "name",
     "kind",
     "width_m",
     "length_m",
     "cover_azimuth_deg",
     "cover",
+    "operation",
 ];
 
 /// Kind-specific data of a variant.

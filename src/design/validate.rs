@@ -1144,3 +1144,42 @@ fn item_properties(r: &mut Reader<'_>, p: &str, it: &Item) {
         unit_interval(r, format!("{q}.emissivity"), pl.emissivity);
     }
 }
+
+/// Set depth [mm] and free brine surface [m²] of a basin kind, `None` for kinds fed by a
+/// continuous flow (wick, multi-effect).
+pub fn basin_of(v: &Variant) -> Option<(f64, f64)> {
+    let plan = v.width_m * v.length_m;
+    match &v.kind {
+        VariantKind::SingleSlope(k) => Some((k.brine_depth_mm, plan)),
+        VariantKind::DoubleSlope(k) => Some((k.brine_depth_mm, plan)),
+        VariantKind::Stepped(k) => Some((k.tray_depth_mm, plan)),
+        VariantKind::Wick(_) | VariantKind::MultiEffect(_) => None,
+    }
+}
+
+/// The `[variant.operation]` tables: ranges, set depth above the wetting depth, controller
+/// stability.
+pub(crate) fn operations(r: &mut Reader<'_>, vs: &[Variant], feed_salinity_g_kg: f64) {
+    for (i, v) in vs.iter().enumerate() {
+        let Some(op) = &v.operation else { continue };
+        let p = format!("{}.operation", spans::index("variant", i));
+        let Some((depth_mm, area_m2)) = basin_of(v) else {
+            r.warn(
+                &p,
+                format!(
+                    "a {} still sets its own feed; the operation table is ignored",
+                    v.kind.name()
+                ),
+            );
+            continue;
+        };
+        for issue in op.check(depth_mm, area_m2, feed_salinity_g_kg) {
+            let path = format!("{p}.{}", issue.field);
+            if issue.error {
+                r.error(&path, issue.message);
+            } else {
+                r.warn(&path, issue.message);
+            }
+        }
+    }
+}

@@ -72,6 +72,10 @@ pub struct EnergyBalance {
     pub fed_kg: f64,
     /// Brine drained [kg].
     pub drained_kg: f64,
+    /// Salt fed [kg].
+    pub fed_salt_kg: f64,
+    /// Salt drained [kg].
+    pub drained_salt_kg: f64,
     /// Simulated time booked [s].
     pub duration_s: f64,
     /// Steps booked.
@@ -101,6 +105,8 @@ impl EnergyBalance {
             leaked_kg: 0.0,
             fed_kg: 0.0,
             drained_kg: 0.0,
+            fed_salt_kg: 0.0,
+            drained_salt_kg: 0.0,
             duration_s: 0.0,
             steps: 0,
             link_heat_j: vec![0.0; net.links().len()],
@@ -150,6 +156,8 @@ impl EnergyBalance {
             self.drained_brine_out_j += nr.drain_enthalpy_w * dt;
             self.fed_kg += nr.feed_kg_s * dt;
             self.drained_kg += nr.drain_kg_s * dt;
+            self.fed_salt_kg += nr.feed_salt_kg_s * dt;
+            self.drained_salt_kg += nr.drain_salt_kg_s * dt;
         }
         self.stored_j = net.stored_energy_j(state_after) - self.start_energy_j;
         self.duration_s += dt;

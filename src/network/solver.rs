@@ -216,6 +216,10 @@ pub struct NodeRecord {
     pub drain_kg_s: f64,
     /// Enthalpy leaving with the drained brine [W].
     pub drain_enthalpy_w: f64,
+    /// Salt entering with the feed [kg s⁻¹].
+    pub feed_salt_kg_s: f64,
+    /// Salt leaving with the drained brine, at the salinity of the step's start [kg s⁻¹].
+    pub drain_salt_kg_s: f64,
     /// Temperature change over the step [K].
     pub temperature_change_k: f64,
     /// The node was wet at the start of the step and is dry (water at or below its
@@ -452,6 +456,13 @@ impl<'n> Solver<'n> {
         fill_record(net, &self.consts, &self.ws.t, inputs, record);
         record.dt_s = dt_s;
         net_inflows_kg_s(net, record, &mut self.consts.inflow);
+        for (i, nr) in record.nodes.iter_mut().enumerate() {
+            if net.nodes[i].holds_water {
+                nr.feed_salt_kg_s = nr.feed_kg_s * inputs.feed_salinity_g_kg[i] / 1000.0;
+                nr.drain_salt_kg_s =
+                    nr.drain_kg_s * salinity(self.consts.m0[i], state.salt_kg[i]) / 1000.0;
+            }
+        }
 
         if dt_s.is_finite() {
             // Mass update from the converged flows; stop at a dry-out instead of stepping
@@ -461,7 +472,7 @@ impl<'n> Solver<'n> {
                 if !node.holds_water {
                     continue;
                 }
-                let (m1, salt1) = self.masses_after(state, inputs, record, dt_s, i);
+                let (m1, salt1) = self.masses_after(state, record, dt_s, i);
                 let w0 = self.consts.m0[i] - state.salt_kg[i];
                 let w1 = m1 - salt1;
                 if w1 < 0.0 {
@@ -486,7 +497,7 @@ impl<'n> Solver<'n> {
                 if !node.holds_water {
                     continue;
                 }
-                let (m1, salt1) = self.masses_after(state, inputs, record, dt_s, i);
+                let (m1, salt1) = self.masses_after(state, record, dt_s, i);
                 state.brine_kg[i] = m1;
                 state.salt_kg[i] = salt1;
                 record.nodes[i].dried_out = self.consts.wet[i] && m1 - salt1 <= node.dry_mass_kg;
@@ -503,24 +514,13 @@ impl<'n> Solver<'n> {
 
     /// Brine and salt of water node `i` at the end of a converged step [kg]: evaporation
     /// takes pure water, feed brings salt at the feed salinity, the drain takes it at the
-    /// salinity of the step's start.
-    fn masses_after(
-        &self,
-        state: &State,
-        inputs: &Inputs,
-        record: &StepRecord,
-        dt_s: f64,
-        i: usize,
-    ) -> (f64, f64) {
+    /// salinity of the step's start (the record's salt flows).
+    fn masses_after(&self, state: &State, record: &StepRecord, dt_s: f64, i: usize) -> (f64, f64) {
         let m0 = self.consts.m0[i];
         let salt0 = state.salt_kg[i];
         let nr = &record.nodes[i];
         let m1 = m0 + dt_s * self.consts.inflow[i];
-        let salt1 = salt0
-            + dt_s
-                * (nr.feed_kg_s * inputs.feed_salinity_g_kg[i]
-                    - nr.drain_kg_s * salinity(m0, salt0))
-                / 1000.0;
+        let salt1 = salt0 + dt_s * (nr.feed_salt_kg_s - nr.drain_salt_kg_s);
         (m1, salt1.clamp(0.0, m1.max(0.0)))
     }
 

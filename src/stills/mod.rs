@@ -10,10 +10,17 @@
 //!
 //! Runs: with a monthly climate, each month's average day is repeated until the daily cycle
 //! repeats (daily yield within [`RunOptions::periodic_yield_tol`] and the node temperatures
-//! at midnight within [`RunOptions::periodic_temperature_tol_k`]); with a weather file, the
-//! records run once in order. Each simulated day starts a fresh energy balance, and the
-//! brine starts each day at the feed salinity (until flushing is modelled this stands for a
-//! daily flush; salt changes no stored energy).
+//! at midnight within [`RunOptions::periodic_temperature_tol_k`], and for a basin its depth
+//! and salinity within [`RunOptions::periodic_depth_tol_mm`] and
+//! [`RunOptions::periodic_salinity_tol`]); each month starts from where the month before
+//! ended. With a weather file, the records run once in order. Each simulated day starts a
+//! fresh energy balance; the brine (water and salt) carries over from day to day.
+//!
+//! Feeding is the driver's job: for a basin-type still an [`Operator`] (from the variant's
+//! `[variant.operation]` table, see [`crate::operation`]) sets feed and drain at the start of
+//! every control interval. Hours in which it acts are split into control intervals (default
+//! [`crate::design::DEFAULT_CONTROL_INTERVAL_S`]); the network's `advance` is called once per
+//! interval, so the energy balance books every interval of the day.
 
 pub mod double_slope;
 pub mod multi_effect;
@@ -33,6 +40,7 @@ use crate::network::{
     EnergyBalance, Inputs, LossPath, Network, NetworkError, NodeId, Simulation, SolverSettings,
     State, StepControl,
 };
+use crate::operation::{BasinView, DayLog, MassBalance, Operation, OperationDay, Operator};
 use crate::physics::constants::ZERO_CELSIUS_K;
 use crate::physics::irradiance::PlaneIrradiance;
 use crate::physics::water;
@@ -50,9 +58,10 @@ pub const MAX_RESIDUAL_FRACTION: f64 = 1e-3;
 
 /// Accuracy setting of the adaptive step: the largest temperature change of a node with
 /// heat capacity in one step \[K\]. Halving it (and the step limits) changes every demo
-/// month's daily yield by at most 0.42 % (measured; `tests/it/stills.rs` holds it under 1 %),
-/// and 4 K rather than 2 K keeps a simulated year within its time budget (`benches/stills.rs`).
-pub const DEFAULT_MAX_CHANGE_K: f64 = 4.0;
+/// month's daily yield by at most 0.22 % (measured; `tests/it/stills.rs` holds it under 1 %).
+/// 4 K would halve the steps but lets a basin that runs dry each afternoon fall into a
+/// two-day cycle that never repeats within the periodic-day tolerance.
+pub const DEFAULT_MAX_CHANGE_K: f64 = 2.0;
 
 /// What a variant needs to know about one weather record.
 #[derive(Debug, Clone, Copy)]
@@ -83,9 +92,24 @@ pub struct Basin {
     pub set_kg: f64,
 }
 
-/// Solar hour at which a basin is topped up to its set depth \[h\] (08:00 solar time; the feed
-/// flows during the hour that starts then). Common practice, no source.
-pub const TOP_UP_SOLAR_HOUR: f64 = 8.0;
+/// What an operator sees of a basin in `state`.
+pub fn basin_view(state: &State, basin: &Basin) -> BasinView {
+    let m = state.brine_kg(basin.node).unwrap_or(0.0);
+    let salt = state.salt_kg(basin.node).unwrap_or(0.0);
+    BasinView {
+        brine_kg: m,
+        depth_mm: crate::operation::depth_mm(m, salt, basin.area_m2),
+        salinity_g_kg: crate::operation::dissolved_salinity_g_kg(m, salt),
+    }
+}
+
+/// Water (brine less salt), dissolved salt and crust of a basin in `state` [kg].
+fn basin_masses(state: &State, basin: &Basin) -> (f64, f64, f64) {
+    let m = state.brine_kg(basin.node).unwrap_or(0.0);
+    let salt = state.salt_kg(basin.node).unwrap_or(0.0);
+    let crust = crate::operation::crust_kg(m, salt);
+    (m - salt, salt - crust, crust)
+}
 
 /// A still variant as the driver sees it.
 pub trait StillModel {
@@ -404,6 +428,14 @@ pub struct HourRecord {
     pub sides_w: f64,
     /// Distillate over the hour [L] (1 kg = 1 L).
     pub distillate_l: f64,
+    /// Brine depth at the end of the hour [mm] (0 for a still without a basin).
+    pub depth_mm: f64,
+    /// Salinity of the brine at the end of the hour [g kg⁻¹].
+    pub salinity_g_kg: f64,
+    /// Feed over the hour [L].
+    pub feed_l: f64,
+    /// Brine flushed or overflowed over the hour [L].
+    pub flush_l: f64,
 }
 
 /// The worst month.
@@ -444,6 +476,8 @@ pub struct MonthResult {
     pub days_to_periodic: u32,
     /// Energy booked over the day.
     pub energy: EnergySummary,
+    /// Operation of the basin over the (last) day; `None` for a still without a basin.
+    pub operation: Option<OperationDay>,
 }
 
 /// The result every variant returns.
@@ -493,11 +527,18 @@ pub struct RunOptions {
     pub periodic_yield_tol: f64,
     /// Midnight temperature tolerance of the periodic test \[K\].
     pub periodic_temperature_tol_k: f64,
+    /// Midnight brine depth tolerance of the periodic test \[mm\].
+    pub periodic_depth_tol_mm: f64,
+    /// Relative day-to-day change of the midnight salinity accepted as periodic [-].
+    pub periodic_salinity_tol: f64,
 }
 
 impl Default for RunOptions {
     /// The network's step control with [`DEFAULT_MAX_CHANGE_K`] per step and steps up to an
-    /// hour, periodic within 0.1 % and 0.05 K, at most 40 days.
+    /// hour, periodic within 0.1 % of yield, 0.05 K, 0.05 mm of depth and 0.5 % of salinity
+    /// per day, at most 40 days. The salinity test is the loosest because salt in a deep basin
+    /// settles slowly (time constant: basin mass ÷ flush rate, days); a 0.5 % change of a
+    /// 50 g/kg brine moves Nayar's vapour-pressure ratio by under 0.02 %.
     fn default() -> Self {
         RunOptions {
             control: StepControl {
@@ -510,6 +551,8 @@ impl Default for RunOptions {
             max_days: 40,
             periodic_yield_tol: 1e-3,
             periodic_temperature_tol_k: 0.05,
+            periodic_depth_tol_mm: 0.05,
+            periodic_salinity_tol: 5e-3,
         }
     }
 }
@@ -581,33 +624,14 @@ pub fn simulate_variant(
         at: String::new(),
         reason: format!("the {} kind is not modelled yet", variant.kind.name()),
     })?;
-    run_model(
+    run_model_operated(
         model.as_ref(),
         &variant.name,
         variant.kind.name(),
         weather,
         opts,
+        &variant.operation.clone().unwrap_or_default(),
     )
-}
-
-/// Feed for the hour of `rec`: during the hour that starts at [`TOP_UP_SOLAR_HOUR`] the basin is
-/// filled back to its set mass with feed water at air temperature; no feed otherwise.
-fn top_up(
-    net: &Network,
-    basin: &Basin,
-    rec: &HourlyWeather,
-    state: &State,
-    inputs: &mut Inputs,
-    feed_salinity_g_kg: f64,
-) -> Result<(), NetworkError> {
-    let start = rec.hour_mid_solar_h - 0.5 * rec.period_h;
-    let feed_kg_s = if (start - TOP_UP_SOLAR_HOUR).abs() < 0.5 * rec.period_h {
-        let now = state.brine_kg(basin.node).unwrap_or(0.0);
-        (basin.set_kg - now).max(0.0) / (rec.period_h * 3600.0)
-    } else {
-        0.0
-    };
-    inputs.set_feed(net, basin.node, feed_kg_s, rec.t_air_k, feed_salinity_g_kg)
 }
 
 /// Irradiance on every plane of `model` for every weather record: `rows[record][plane]`.
@@ -645,6 +669,7 @@ struct DayTotals {
     node_max_k: Vec<f64>,
     /// Hours in which each water node was dry at some moment.
     node_dry_hours: Vec<f64>,
+    operation: Option<OperationDay>,
 }
 
 fn model_error(name: &str, month: u32, hour: Option<f64>, reason: String) -> Error {
@@ -659,7 +684,8 @@ fn model_error(name: &str, month: u32, hour: Option<f64>, reason: String) -> Err
     }
 }
 
-/// Run one day of records from `state`; returns the day's totals and the end state.
+/// Run one day of records from `state`; returns the day's totals and the end state. For a
+/// basin-type still `operator` sets feed and drain interval by interval.
 #[allow(clippy::too_many_arguments)]
 fn run_day(
     model: &dyn StillModel,
@@ -670,20 +696,16 @@ fn run_day(
     state: State,
     inputs: &mut Inputs,
     opts: &RunOptions,
+    operator: &mut Operator,
 ) -> Result<(DayTotals, State), Error> {
     let net = model.network();
     let brine = model.brine_node();
     let cover = model.cover_node();
-    let mut state = state;
+    let basin = model.basin();
     let month = records.first().map_or(1, |r| r.month);
-    for node in model.water_nodes() {
-        let m_water = state.brine_kg(node).unwrap_or(0.0);
-        state
-            .set_brine(net, node, m_water, weather.feed_salinity_g_kg)
-            .map_err(|e| model_error(name, month, None, e.to_string()))?;
-    }
     let plane_areas: Vec<f64> = model.planes().iter().map(|(_, a)| *a).collect();
     let total_area: f64 = plane_areas.iter().sum::<f64>().max(f64::MIN_POSITIVE);
+    let start_masses = basin.map(|b| basin_masses(&state, &b));
     let mut sim = Simulation::new(net, state, opts.settings, opts.control)
         .map_err(|e| model_error(name, month, None, e.to_string()))?;
     let mut t = DayTotals {
@@ -697,6 +719,10 @@ fn run_day(
             && s.brine_kg.get(i).copied().unwrap_or(0.0) - s.salt_kg.get(i).copied().unwrap_or(0.0)
                 <= node.dry_mass_kg
     };
+    let mut log = DayLog::new();
+    let wet_mm = operator.operation().wetting_depth_mm;
+    let set_mm = operator.set_depth_mm();
+    let interval_s = operator.operation().control_interval_s;
     for (rec, p) in records.iter().zip(poa) {
         let m = (rec.month.clamp(1, 12) - 1) as usize;
         let ctx = HourContext {
@@ -711,29 +737,65 @@ fn run_day(
         let split = model
             .hour_inputs(&ctx, sim.state(), inputs)
             .map_err(|e| hour_err(e.to_string()))?;
-        if let Some(basin) = model.basin() {
-            top_up(
-                net,
-                &basin,
-                rec,
-                sim.state(),
-                inputs,
-                weather.feed_salinity_g_kg,
-            )
-            .map_err(|e| hour_err(e.to_string()))?;
-        }
         let before = sim.balance().clone();
         let dt_s = rec.period_h * 3600.0;
         let dry_before: Vec<bool> = (0..net.nodes().len())
             .map(|i| is_dry(sim.state(), i))
             .collect();
-        let summary = sim
-            .advance(inputs, dt_s)
-            .map_err(|e| hour_err(e.to_string()))?;
+        let mut dried_nodes: Vec<usize> = Vec::new();
+        let start_h = rec.hour_mid_solar_h - 0.5 * rec.period_h;
+        let daylight = split.entering_w > 0.0;
+        if let Some(b) = basin {
+            let n = if operator.splits_hour(start_h, rec.period_h) {
+                (dt_s / interval_s).ceil().max(1.0) as u32
+            } else {
+                1
+            };
+            let sub_s = dt_s / f64::from(n);
+            for k in 0..n {
+                let view = basin_view(sim.state(), &b);
+                let (act, flushed) =
+                    operator.act(start_h + f64::from(k) * sub_s / 3600.0, sub_s, &view);
+                inputs
+                    .set_feed(
+                        net,
+                        b.node,
+                        act.feed_kg_s,
+                        rec.t_air_k,
+                        weather.feed_salinity_g_kg,
+                    )
+                    .and_then(|()| inputs.set_drain(net, b.node, act.drain_kg_s))
+                    .map_err(|e| hour_err(e.to_string()))?;
+                let d0 = sim.balance().distillate_kg;
+                let summary = sim
+                    .advance(inputs, sub_s)
+                    .map_err(|e| hour_err(e.to_string()))?;
+                operator.collected(sim.balance().distillate_kg - d0);
+                let end = basin_view(sim.state(), &b);
+                let (_, _, crust) = basin_masses(sim.state(), &b);
+                log.book(
+                    sub_s,
+                    view.depth_mm,
+                    end.depth_mm,
+                    end.salinity_g_kg,
+                    crust,
+                    set_mm,
+                    wet_mm,
+                    daylight,
+                );
+                log.dry_out_events += summary.dry_outs.len() as u32;
+                dried_nodes.extend(summary.dry_outs.iter().map(|&(_, n)| n));
+                log.flushes += u32::from(flushed);
+            }
+        } else {
+            let summary = sim
+                .advance(inputs, dt_s)
+                .map_err(|e| hour_err(e.to_string()))?;
+            dried_nodes.extend(summary.dry_outs.iter().map(|&(_, n)| n));
+        }
         t.hours_simulated += rec.period_h;
         for (i, was_dry) in dry_before.iter().enumerate() {
-            let dried = summary.dry_outs.iter().any(|&(_, n)| n == i);
-            if *was_dry || dried || is_dry(sim.state(), i) {
+            if *was_dry || dried_nodes.contains(&i) || is_dry(sim.state(), i) {
                 t.node_dry_hours[i] += rec.period_h;
             }
             if let Some(tk) = sim.state().temperature_k(NodeId(i)) {
@@ -762,7 +824,7 @@ fn run_day(
         t.poa_j_m2 += poa_w_m2 * dt_s;
         t.distillate_kg += d_kg;
         t.distillate_latent_j += d_kg * water::latent_heat_j_kg(t_brine);
-        if split.entering_w <= 0.0 {
+        if !daylight {
             t.night_kg += d_kg;
         }
         t.max_brine_k = t.max_brine_k.max(t_brine);
@@ -773,6 +835,7 @@ fn run_day(
                 .liner_node()
                 .and_then(|n| s.temperature_k(n))
                 .unwrap_or(t_cover);
+            let view = basin.map(|b| basin_view(s, &b));
             t.hours.push(HourRecord {
                 month: rec.month,
                 day_of_year: rec.day_of_year,
@@ -788,6 +851,13 @@ fn run_day(
                 base_w: path(LossPath::Base),
                 sides_w: path(LossPath::Sides),
                 distillate_l: d_kg,
+                depth_mm: view.map_or(0.0, |v| v.depth_mm),
+                salinity_g_kg: view.map_or_else(
+                    || s.salinity_g_kg(brine).unwrap_or(0.0),
+                    |v| v.salinity_g_kg,
+                ),
+                feed_l: after.fed_kg - before.fed_kg,
+                flush_l: after.drained_kg - before.drained_kg,
             });
         }
     }
@@ -795,8 +865,48 @@ fn run_day(
     if let Err(e) = balance.check(MAX_RESIDUAL_FRACTION) {
         return Err(model_error(name, month, None, e.to_string()));
     }
+    if let (Some(b), Some((w0, s0, c0))) = (basin, start_masses) {
+        let (w1, s1, c1) = basin_masses(sim.state(), &b);
+        let mass = MassBalance {
+            fed_kg: balance.fed_kg,
+            fed_salt_kg: balance.fed_salt_kg,
+            flushed_kg: balance.drained_kg,
+            flushed_salt_kg: balance.drained_salt_kg,
+            distillate_kg: balance.distillate_kg,
+            leaked_kg: balance.leaked_kg,
+            water_start_kg: w0,
+            water_end_kg: w1,
+            dissolved_salt_start_kg: s0,
+            dissolved_salt_end_kg: s1,
+            crust_start_kg: c0,
+            crust_end_kg: c1,
+        };
+        let end = basin_view(sim.state(), &b);
+        t.operation = Some(OperationDay::from_log(&log, operator, mass, end));
+    }
     t.balance = Some(balance);
     Ok((t, sim.state().clone()))
+}
+
+/// What the periodic test compares between days: yield [kg], node temperatures [K] and the
+/// basin's depth [mm] and salinity [g kg⁻¹].
+type DayEnd = (f64, Vec<f64>, Option<(f64, f64)>);
+
+/// A basin's depth [mm] and salinity [g kg⁻¹] at the end of a day, for the periodic test.
+fn basin_end(model: &dyn StillModel, state: &State) -> Option<(f64, f64)> {
+    model.basin().map(|b| {
+        let v = basin_view(state, &b);
+        (v.depth_mm, v.salinity_g_kg)
+    })
+}
+
+/// An operator for `model`'s basin running `operation` (a no-op stand-in for stills without
+/// a basin: it is never asked to act).
+fn operator_for(model: &dyn StillModel, operation: &Operation) -> Operator {
+    match model.basin() {
+        Some(b) => Operator::new(operation, b.area_m2, b.set_kg),
+        None => Operator::new(operation, model.footprint_m2(), model.set_brine_kg()),
+    }
 }
 
 fn month_result(
@@ -846,13 +956,12 @@ fn month_result(
         max_cover_c: days.iter().map(|d| d.max_cover_k).fold(f64::MIN, f64::max) - ZERO_CELSIUS_K,
         days_to_periodic,
         energy,
+        operation: days.last().and_then(|d| d.operation.clone()),
     }
 }
 
-/// Run a built model over the site's weather on its cover planes.
-///
-/// The plane-of-array irradiance (Hay–Davies) of every record on every plane is computed
-/// once before the run.
+/// Run a built model over the site's weather on its cover planes, operated as by default
+/// ([`Operation::default`]: a morning refill by hand, flushing twice the distillate).
 pub fn run_model(
     model: &dyn StillModel,
     name: &str,
@@ -860,7 +969,25 @@ pub fn run_model(
     weather: &SiteWeather,
     opts: &RunOptions,
 ) -> Result<VariantResult, Error> {
+    run_model_operated(model, name, kind, weather, opts, &Operation::default())
+}
+
+/// Run a built model over the site's weather on its cover planes, its basin fed and flushed
+/// as `operation` says.
+///
+/// The plane-of-array irradiance (Hay–Davies) of every record on every plane is computed
+/// once before the run. One operator runs the whole year, so a controller's memory and the
+/// brine carry over from month to month.
+pub fn run_model_operated(
+    model: &dyn StillModel,
+    name: &str,
+    kind: &str,
+    weather: &SiteWeather,
+    opts: &RunOptions,
+    operation: &Operation,
+) -> Result<VariantResult, Error> {
     let net = model.network();
+    let mut operator = operator_for(model, operation);
     let poa = plane_irradiance_rows(model, weather);
     let hours = &weather.series.hours;
     let mut inputs = net
@@ -869,6 +996,7 @@ pub fn run_model(
     let mut months = Vec::with_capacity(12);
     let mut hourly = Vec::new();
     let mut run = RunTotals::default();
+    let mut carried: Option<State> = None;
     if weather.average_days {
         for m in 1..=12u32 {
             let idx: Vec<usize> = (0..hours.len()).filter(|&i| hours[i].month == m).collect();
@@ -883,30 +1011,52 @@ pub fn run_model(
             let recs = &hours[a..=b];
             let p = &poa[a..=b];
             let t0 = weather.month_mean_air_k[(m - 1) as usize];
-            let mut state = model
-                .initial_state(t0, weather.feed_salinity_g_kg)
-                .map_err(|e| model_error(name, m, None, e.to_string()))?;
-            let mut prev: Option<(f64, Vec<f64>)> = None;
+            let mut state = match carried.take() {
+                Some(s) => s,
+                None => model
+                    .initial_state(t0, weather.feed_salinity_g_kg)
+                    .map_err(|e| model_error(name, m, None, e.to_string()))?,
+            };
+            let mut prev: Option<DayEnd> = None;
             let mut done = None;
             for day in 1..=opts.max_days {
-                let (totals, end) =
-                    run_day(model, name, recs, p, weather, state, &mut inputs, opts)?;
+                let (totals, end) = run_day(
+                    model,
+                    name,
+                    recs,
+                    p,
+                    weather,
+                    state,
+                    &mut inputs,
+                    opts,
+                    &mut operator,
+                )?;
                 let temps = end.temperatures_k().to_vec();
-                if let Some((y0, t_prev)) = &prev {
+                let brine_end = basin_end(model, &end);
+                if let Some((y0, t_prev, b_prev)) = &prev {
                     let dy = (totals.distillate_kg - y0).abs();
                     let dt = temps
                         .iter()
                         .zip(t_prev)
                         .map(|(a, b)| (a - b).abs())
                         .fold(0.0, f64::max);
+                    let brine_ok = match (brine_end, b_prev) {
+                        (Some((d1, s1)), Some((d0, s0))) => {
+                            (d1 - d0).abs() <= opts.periodic_depth_tol_mm
+                                && (s1 - s0).abs() <= opts.periodic_salinity_tol * s1.max(1e-6)
+                        }
+                        _ => true,
+                    };
                     if dy <= opts.periodic_yield_tol * totals.distillate_kg.max(1e-9)
                         && dt <= opts.periodic_temperature_tol_k
+                        && brine_ok
                     {
                         done = Some((totals, day));
+                        carried = Some(end);
                         break;
                     }
                 }
-                prev = Some((totals.distillate_kg, temps));
+                prev = Some((totals.distillate_kg, temps, brine_end));
                 state = end;
             }
             let Some((totals, days)) = done else {
@@ -949,6 +1099,7 @@ pub fn run_model(
                 state,
                 &mut inputs,
                 opts,
+                &mut operator,
             )?;
             run.add_day(&totals, 1.0);
             hourly.append(&mut totals.hours);
@@ -1102,7 +1253,18 @@ pub fn run_single_day_with_details(
     let mut inputs = net
         .inputs(t0)
         .map_err(|e| model_error(name, month, None, e.to_string()))?;
-    let (totals, _) = run_day(model, name, recs, &poa, weather, state, &mut inputs, opts)?;
+    let mut operator = operator_for(model, &Operation::default());
+    let (totals, _) = run_day(
+        model,
+        name,
+        recs,
+        &poa,
+        weather,
+        state,
+        &mut inputs,
+        opts,
+        &mut operator,
+    )?;
     let mut run = RunTotals::default();
     run.add_day(&totals, 1.0);
     Ok((

@@ -70,12 +70,12 @@ pub fn write_text(
         if let Some(hours) = &r.hourly {
             writeln!(
                 out,
-                "hourly: month day hour  air °C  cover °C  brine °C  liner °C  in W/m²  to air W  to sky W  base W  sides W  distillate L"
+                "hourly: month day hour  air °C  cover °C  brine °C  liner °C  in W/m²  to air W  to sky W  base W  sides W  distillate L  depth mm  salinity g/kg"
             )?;
             for h in hours {
                 writeln!(
                     out,
-                    "        {:>5} {:>3} {:>4.1}  {:>6.1}  {:>8.1}  {:>8.1}  {:>8.1}  {:>7.0}  {:>8.0}  {:>8.0}  {:>6.0}  {:>7.0}  {:>12.3}",
+                    "        {:>5} {:>3} {:>4.1}  {:>6.1}  {:>8.1}  {:>8.1}  {:>8.1}  {:>7.0}  {:>8.0}  {:>8.0}  {:>6.0}  {:>7.0}  {:>12.3}  {:>8.2}  {:>13.1}",
                     h.month,
                     h.day_of_year,
                     h.solar_hour_h,
@@ -88,7 +88,9 @@ pub fn write_text(
                     h.cover_to_sky_w,
                     h.base_w,
                     h.sides_w,
-                    h.distillate_l
+                    h.distillate_l,
+                    h.depth_mm,
+                    h.salinity_g_kg
                 )?;
             }
         }
@@ -182,6 +184,10 @@ pub fn write_csv(out: &mut impl Write, results: &[VariantResult]) -> io::Result<
             "base_w",
             "sides_w",
             "distillate_l",
+            "depth_mm",
+            "salinity_g_kg",
+            "feed_l",
+            "flush_l",
         ])?;
         for r in results {
             for h in r.hourly.iter().flatten() {
@@ -201,6 +207,10 @@ pub fn write_csv(out: &mut impl Write, results: &[VariantResult]) -> io::Result<
                     format!("{:.1}", h.base_w),
                     format!("{:.1}", h.sides_w),
                     format!("{:.5}", h.distillate_l),
+                    format!("{:.3}", h.depth_mm),
+                    format!("{:.2}", h.salinity_g_kg),
+                    format!("{:.4}", h.feed_l),
+                    format!("{:.4}", h.flush_l),
                 ])?;
             }
         }

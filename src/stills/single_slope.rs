@@ -554,7 +554,12 @@ impl StillModel for SingleSlopeStill {
         for &(id, area) in &self.side_links {
             inputs.set_conductance_w_k(net, id, u_side * area)?;
         }
-        let split = self.optics.split(&ctx.poa[0], h.sun);
+        // The depth split uses the brine actually in the basin, not the set depth.
+        let mut optics = self.optics;
+        if let (Some(m), Some(salt)) = (state.brine_kg(self.brine), state.salt_kg(self.brine)) {
+            optics.depth_m = crate::operation::depth_mm(m, salt, self.footprint_m2) / 1000.0;
+        }
+        let split = optics.split(&ctx.poa[0], h.sun);
         inputs.set_source_w(net, self.cover, split.cover_w)?;
         inputs.set_source_w(net, self.brine, split.brine_w)?;
         inputs.set_source_w(net, self.liner, split.liner_w)?;

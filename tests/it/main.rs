@@ -5,6 +5,7 @@ mod climate;
 mod design;
 mod economics;
 mod network;
+mod operation;
 mod physics_sun;
 mod physics_transfer;
 mod physics_water;
