@@ -10,6 +10,7 @@
 #![deny(missing_docs)]
 #![deny(clippy::float_cmp)]
 
+pub mod cautions;
 pub mod climate;
 pub mod design;
 pub mod economics;

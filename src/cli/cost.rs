@@ -89,6 +89,7 @@ pub fn run(args: &CostArgs) -> anyhow::Result<()> {
             for (r, subs) in &reports {
                 write_text(&mut out, r, subs, args.substitutes)?;
             }
+            stillbench::cautions::write_cautions(&mut out)?;
         }
         Format::Json => {
             let v: Vec<serde_json::Value> = reports

@@ -395,7 +395,10 @@ pub fn run(args: &OperateArgs) -> anyhow::Result<()> {
             runs.push((*v, r, pm));
         }
         match args.format {
-            Format::Text => write_text(&mut buf, title, &runs)?,
+            Format::Text => {
+                write_text(&mut buf, title, &runs)?;
+                stillbench::cautions::write_cautions(&mut buf)?;
+            }
             Format::Json => {
                 let out: Vec<VariantOut<'_>> = runs
                     .iter()

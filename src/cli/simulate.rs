@@ -2,7 +2,7 @@
 //! monthly and annual yields.
 
 use std::io::Write;
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 use anyhow::Context;
 use stillbench::design::{self, LoadedDesign};
@@ -57,38 +57,6 @@ pub struct SimulateArgs {
     pub force: bool,
 }
 
-fn write_atomically(path: &Path, bytes: &[u8], force: bool) -> anyhow::Result<()> {
-    if path.exists() && !force {
-        return Err(stillbench::Error::Io {
-            path: path.display().to_string(),
-            source: std::io::Error::new(
-                std::io::ErrorKind::AlreadyExists,
-                "the file exists; add --force to replace it",
-            ),
-        }
-        .into());
-    }
-    let dir = path
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let name = path
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_else(|| "out".to_owned());
-    let tmp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
-    let io_err = |p: &Path, source| stillbench::Error::Io {
-        path: p.display().to_string(),
-        source,
-    };
-    std::fs::write(&tmp, bytes).map_err(|e| io_err(&tmp, e))?;
-    if let Err(e) = std::fs::rename(&tmp, path) {
-        let _ = std::fs::remove_file(&tmp);
-        return Err(io_err(path, e).into());
-    }
-    Ok(())
-}
-
 /// Run `simulate`.
 pub fn run(args: &SimulateArgs) -> anyhow::Result<()> {
     let loaded: LoadedDesign = match &args.design {
@@ -96,11 +64,16 @@ pub fn run(args: &SimulateArgs) -> anyhow::Result<()> {
         None => design::load_demo(),
     }
     .map_err(stillbench::Error::Design)?;
+    // Refuse before simulating, not after: the answer does not depend on the results.
     if let Some(out) = &args.out
         && out.exists()
         && !args.force
     {
-        return write_atomically(out, &[], false);
+        return Err(stillbench::Error::Refused {
+            path: out.display().to_string(),
+            reason: "it already exists; pass --force to replace it".into(),
+        }
+        .into());
     }
     let variants: Vec<_> = loaded
         .design
@@ -157,13 +130,17 @@ pub fn run(args: &SimulateArgs) -> anyhow::Result<()> {
     let title = loaded.design.project.title.as_str();
     let mut buf = Vec::new();
     match args.format {
-        Format::Text => render::write_text(&mut buf, title, &results),
+        Format::Text => render::write_text(&mut buf, title, &results)
+            .and_then(|()| stillbench::cautions::write_cautions(&mut buf)),
         Format::Json => render::write_json(&mut buf, title, &results),
         Format::Csv => render::write_csv(&mut buf, &results),
     }
     .context("formatting the results")?;
     match &args.out {
-        Some(path) => write_atomically(path, &buf, args.force),
+        Some(path) => {
+            stillbench::output::write_atomic(path, args.force, |w| w.write_all(&buf))?;
+            Ok(())
+        }
         None => {
             let mut out = std::io::stdout().lock();
             out.write_all(&buf).context("writing to standard output")?;

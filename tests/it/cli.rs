@@ -104,3 +104,21 @@ fn a_bad_weather_file_fails_with_its_line_number() {
     assert!(err.contains("bad_night.csv:3"), "{err}");
     assert!(!err.contains("panicked"), "{err}");
 }
+
+#[test]
+fn text_results_carry_the_safety_cautions() {
+    // The tool estimates quantity, never safety: every text result ends with the cautions
+    // (drinking water, glass and hot surfaces, structures) and defers to local authorities.
+    for cmd in [
+        vec!["simulate", "--variant", "glass-basin"],
+        vec!["cost", "--variant", "glass-basin"],
+        vec!["operate", "--variant", "glass-basin"],
+    ] {
+        let out = stillbench().args(&cmd).output().unwrap();
+        assert!(out.status.success(), "{cmd:?}: {out:?}");
+        let text = String::from_utf8(out.stdout).unwrap();
+        for needle in ["Cautions:", "health authority", "remineralise", "building"] {
+            assert!(text.contains(needle), "{cmd:?} lacks {needle}");
+        }
+    }
+}
