@@ -474,6 +474,12 @@ pub struct MonthResult {
     pub max_cover_c: f64,
     /// Days simulated until the cycle repeated (0 for a weather file).
     pub days_to_periodic: u32,
+    /// Days in the repeating cycle the month's figures average: 1 when every day repeats,
+    /// more when operation repeats over several days (a flush every few days), and
+    /// [`QUASI_PERIODIC_WINDOW_DAYS`] when no exact cycle exists (a salinity-limit flush whose
+    /// interval alternates) and the mean of that window has settled instead; 0 for a
+    /// weather file.
+    pub cycle_days: u32,
     /// Energy booked over the day.
     pub energy: EnergySummary,
     /// Operation of the basin over the (last) day; `None` for a still without a basin.
@@ -892,6 +898,53 @@ fn run_day(
 /// basin's depth [mm] and salinity [g kg⁻¹].
 type DayEnd = (f64, Vec<f64>, Option<(f64, f64)>);
 
+/// Longest multi-day cycle the periodic test looks for [days].
+pub const MAX_CYCLE_DAYS: usize = 10;
+
+/// The shortest period P (1…[`MAX_CYCLE_DAYS`]) with which the last day repeats the day P days
+/// before it, within the periodic tolerances of `opts`; `None` while nothing repeats.
+fn cycle_period(history: &[(DayTotals, DayEnd)], opts: &RunOptions) -> Option<usize> {
+    let (_, (y1, t1, b1)) = history.last()?;
+    (1..=MAX_CYCLE_DAYS.min(history.len().saturating_sub(1))).find(|&p| {
+        let (_, (y0, t0, b0)) = &history[history.len() - 1 - p];
+        let dt = t1
+            .iter()
+            .zip(t0)
+            .map(|(a, b)| (a - b).abs())
+            .fold(0.0, f64::max);
+        let brine_ok = match (b1, b0) {
+            (Some((d1, s1)), Some((d0, s0))) => {
+                (d1 - d0).abs() <= opts.periodic_depth_tol_mm
+                    && (s1 - s0).abs() <= opts.periodic_salinity_tol * s1.max(1e-6)
+            }
+            _ => true,
+        };
+        (y1 - y0).abs() <= opts.periodic_yield_tol * y1.max(1e-9)
+            && dt <= opts.periodic_temperature_tol_k
+            && brine_ok
+    })
+}
+
+/// Window of days averaged when a month has no exact cycle [days].
+pub const QUASI_PERIODIC_WINDOW_DAYS: usize = 10;
+
+/// When the mean daily yield of the last [`QUASI_PERIODIC_WINDOW_DAYS`] days agrees with that
+/// of the window before within 1 % (ten times the periodic yield tolerance), the window's
+/// length; `None` otherwise.
+fn settled_window(history: &[(DayTotals, DayEnd)], opts: &RunOptions) -> Option<usize> {
+    let w = QUASI_PERIODIC_WINDOW_DAYS;
+    if history.len() < 2 * w {
+        return None;
+    }
+    let mean = |days: &[(DayTotals, DayEnd)]| {
+        days.iter().map(|(t, _)| t.distillate_kg).sum::<f64>() / days.len() as f64
+    };
+    let n = history.len();
+    let last = mean(&history[n - w..]);
+    let before = mean(&history[n - 2 * w..n - w]);
+    ((last - before).abs() <= 10.0 * opts.periodic_yield_tol * last.max(1e-9)).then_some(w)
+}
+
 /// A basin's depth [mm] and salinity [g kg⁻¹] at the end of a day, for the periodic test.
 fn basin_end(model: &dyn StillModel, state: &State) -> Option<(f64, f64)> {
     model.basin().map(|b| {
@@ -914,6 +967,7 @@ fn month_result(
     month: u32,
     days: &[DayTotals],
     days_to_periodic: u32,
+    cycle_days: u32,
 ) -> MonthResult {
     let n = days.len().max(1) as f64;
     let fp = model.footprint_m2();
@@ -955,6 +1009,7 @@ fn month_result(
         max_brine_c: days.iter().map(|d| d.max_brine_k).fold(f64::MIN, f64::max) - ZERO_CELSIUS_K,
         max_cover_c: days.iter().map(|d| d.max_cover_k).fold(f64::MIN, f64::max) - ZERO_CELSIUS_K,
         days_to_periodic,
+        cycle_days,
         energy,
         operation: days.last().and_then(|d| d.operation.clone()),
     }
@@ -1017,8 +1072,9 @@ pub fn run_model_operated(
                     .initial_state(t0, weather.feed_salinity_g_kg)
                     .map_err(|e| model_error(name, m, None, e.to_string()))?,
             };
-            let mut prev: Option<DayEnd> = None;
-            let mut done = None;
+            // Days run so far this month with what the periodic test compares at their end.
+            let mut history: Vec<(DayTotals, DayEnd)> = Vec::new();
+            let mut done: Option<(usize, u32)> = None;
             for day in 1..=opts.max_days {
                 let (totals, end) = run_day(
                     model,
@@ -1031,52 +1087,54 @@ pub fn run_model_operated(
                     opts,
                     &mut operator,
                 )?;
-                let temps = end.temperatures_k().to_vec();
-                let brine_end = basin_end(model, &end);
-                if let Some((y0, t_prev, b_prev)) = &prev {
-                    let dy = (totals.distillate_kg - y0).abs();
-                    let dt = temps
-                        .iter()
-                        .zip(t_prev)
-                        .map(|(a, b)| (a - b).abs())
-                        .fold(0.0, f64::max);
-                    let brine_ok = match (brine_end, b_prev) {
-                        (Some((d1, s1)), Some((d0, s0))) => {
-                            (d1 - d0).abs() <= opts.periodic_depth_tol_mm
-                                && (s1 - s0).abs() <= opts.periodic_salinity_tol * s1.max(1e-6)
-                        }
-                        _ => true,
-                    };
-                    if dy <= opts.periodic_yield_tol * totals.distillate_kg.max(1e-9)
-                        && dt <= opts.periodic_temperature_tol_k
-                        && brine_ok
-                    {
-                        done = Some((totals, day));
-                        carried = Some(end);
-                        break;
-                    }
+                let day_end: DayEnd = (
+                    totals.distillate_kg,
+                    end.temperatures_k().to_vec(),
+                    basin_end(model, &end),
+                );
+                history.push((totals, day_end));
+                // The cycle may span several days (a flush every few days, a basin that dries
+                // out on alternate afternoons): the shortest period whose days repeat wins.
+                if let Some(period) = cycle_period(&history, opts) {
+                    done = Some((period, day));
+                    carried = Some(end);
+                    break;
                 }
-                prev = Some((totals.distillate_kg, temps, brine_end));
                 state = end;
             }
-            let Some((totals, days)) = done else {
+            // No exact cycle: accept the mean of the last window when it has settled against
+            // the window before it (threshold-triggered flushing is quasi-periodic).
+            if done.is_none() {
+                done = settled_window(&history, opts).map(|w| (w, opts.max_days));
+            }
+            let Some((period, days)) = done else {
                 return Err(model_error(
                     name,
                     m,
                     None,
                     format!(
-                        "the daily cycle did not repeat within {} days",
-                        opts.max_days
+                        "the daily cycle did not repeat within {} days (periods up to {} days \
+                         tried)",
+                        opts.max_days, MAX_CYCLE_DAYS
                     ),
                 ));
             };
-            let mut totals = totals;
-            run.add_day(
-                &totals,
-                f64::from(crate::design::DAYS_IN_MONTH[(m - 1) as usize]),
-            );
-            hourly.append(&mut totals.hours);
-            months.push(month_result(model, m, std::slice::from_ref(&totals), days));
+            let cycle: Vec<DayTotals> = history
+                .split_off(history.len() - period)
+                .into_iter()
+                .map(|(t, _)| t)
+                .collect();
+            let weight = f64::from(crate::design::DAYS_IN_MONTH[(m - 1) as usize]) / period as f64;
+            for d in &cycle {
+                run.add_day(d, weight);
+            }
+            let mut result = month_result(model, m, &cycle, days, period as u32);
+            if let Some(last) = cycle.last() {
+                // Hourly records: the cycle's last day (one day of records per month).
+                hourly.extend(last.hours.iter().cloned());
+                result.operation = last.operation.clone().or(result.operation);
+            }
+            months.push(result);
         }
     } else {
         let mut state = model
@@ -1109,7 +1167,7 @@ pub fn run_model_operated(
             start = end;
         }
         for (i, days) in per_month.iter().enumerate() {
-            months.push(month_result(model, i as u32 + 1, days, 0));
+            months.push(month_result(model, i as u32 + 1, days, 0, 0));
         }
     }
     finish(
@@ -1268,7 +1326,7 @@ pub fn run_single_day_with_details(
     let mut run = RunTotals::default();
     run.add_day(&totals, 1.0);
     Ok((
-        month_result(model, month, std::slice::from_ref(&totals), 1),
+        month_result(model, month, std::slice::from_ref(&totals), 1, 1),
         model.run_details(&run),
     ))
 }

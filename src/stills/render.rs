@@ -140,6 +140,7 @@ pub fn write_csv(out: &mut impl Write, results: &[VariantResult]) -> io::Result<
         "max_brine_c",
         "max_cover_c",
         "days_to_periodic",
+        "cycle_days",
         "residual_fraction",
     ])?;
     for r in results {
@@ -159,6 +160,7 @@ pub fn write_csv(out: &mut impl Write, results: &[VariantResult]) -> io::Result<
                 format!("{:.2}", m.max_brine_c),
                 format!("{:.2}", m.max_cover_c),
                 m.days_to_periodic.to_string(),
+                m.cycle_days.to_string(),
                 format!("{:.3e}", m.energy.residual_fraction),
             ])?;
         }
