@@ -872,6 +872,14 @@ pub(crate) fn variants(r: &mut Reader<'_>, vs: &[Variant], lib: Option<&Library>
                 );
                 range(
                     r,
+                    &format!("{p}.glazing_gap_mm"),
+                    k.glazing_gap_mm,
+                    B::In(5.0),
+                    B::In(100.0),
+                    "mm",
+                );
+                range(
+                    r,
                     &format!("{p}.feed_l_h_m2"),
                     k.feed_l_h_m2,
                     B::In(0.0),

@@ -294,6 +294,18 @@ pub enum KindDetails {
         gain_output_ratio: f64,
         /// Heat delivered to the first stage per m² footprint [kWh m⁻² day⁻¹].
         first_stage_heat_kwh_m2_day: f64,
+        /// Air gap between the absorber and the glazing \[mm\].
+        glazing_gap_mm: f64,
+        /// Heat the last plate rejects to the sink per m² footprint [kWh m⁻² day⁻¹].
+        sink_heat_kwh_m2_day: f64,
+        /// Day-mean rise of the last plate above the sink, q ÷ h_sink \[K\] (higher near noon).
+        sink_rise_day_mean_k: f64,
+        /// Highest absorber temperature [°C].
+        absorber_max_c: f64,
+        /// Highest temperature of the last condensing plate [°C].
+        last_plate_max_c: f64,
+        /// What the sink does to the stack, in words, with the run's figures.
+        sink_note: String,
     },
     /// A double-slope basin still.
     DoubleSlope {

@@ -129,10 +129,21 @@ fn yield_rises_with_stages_but_less_than_in_proportion() {
     }
 }
 
-/// Steady distillate under a steady ~1 sun on the aperture [L m⁻² h⁻¹]: the demo's April
-/// noon weather (invented) with the plane-of-array irradiance set to 900 W/m² beam at normal
-/// incidence plus 100 W/m² diffuse.
-fn steady_rate_l_m2_h(loaded: &LoadedDesign) -> f64 {
+/// A steady state under ~1 sun: the demo's April noon weather (invented) with the
+/// plane-of-array irradiance set to 900 W/m² beam at normal incidence plus 100 W/m² diffuse.
+#[derive(Debug, Clone, Copy)]
+struct Steady {
+    /// Distillate [L m⁻² h⁻¹] per m² footprint.
+    rate_l_m2_h: f64,
+    /// Absorber temperature [°C].
+    absorber_c: f64,
+    /// Last condensing plate temperature [°C].
+    last_plate_c: f64,
+    /// Heat into the sink per m² footprint [W m⁻²].
+    sink_w_m2: f64,
+}
+
+fn steady(loaded: &LoadedDesign) -> Steady {
     let w = stills::site_weather(loaded).unwrap();
     let model = stills::build_model(loaded, &loaded.design.variants[0], &w)
         .unwrap()
@@ -161,7 +172,7 @@ fn steady_rate_l_m2_h(loaded: &LoadedDesign) -> f64 {
         .initial_state(rec.t_air_k, w.feed_salinity_g_kg)
         .unwrap();
     let mut inputs = net.inputs(rec.t_air_k).unwrap();
-    let mut rate = 0.0;
+    let mut record = None;
     // The outside and glazing-gap coefficients lag the state: repeat until they settle.
     for _ in 0..6 {
         model.hour_inputs(&ctx, &state, &mut inputs).unwrap();
@@ -173,15 +184,39 @@ fn steady_rate_l_m2_h(loaded: &LoadedDesign) -> f64 {
         )
         .unwrap();
         sim.settle(&inputs).unwrap();
-        rate = sim
-            .last_record()
-            .links
-            .iter()
-            .map(|l| l.collection_kg_s)
-            .sum::<f64>();
+        record = Some(sim.last_record().clone());
         state = sim.state().clone();
     }
-    rate * 3600.0 / model.footprint_m2()
+    let record = record.unwrap();
+    let fp = model.footprint_m2();
+    let rate: f64 = record.links.iter().map(|l| l.collection_kg_s).sum();
+    let node_c = |name: &str| state.temperature_k(net.node_id(name).unwrap()).unwrap() - 273.15;
+    let n = net.nodes().len() / 2 - 1;
+    let sink = net
+        .links()
+        .iter()
+        .position(|l| l.name == "last plate to sink")
+        .unwrap();
+    Steady {
+        rate_l_m2_h: rate * 3600.0 / fp,
+        absorber_c: node_c("absorber"),
+        last_plate_c: node_c(&format!("stage {n} plate")),
+        sink_w_m2: record.links[sink].heat_w / fp,
+    }
+}
+
+/// The Chiavazzo-like stack (see below) with the given sink and optional coefficient.
+fn chiavazzo_like(sink: &str, coefficient_w_m2_k: Option<f64>) -> LoadedDesign {
+    let extra = coefficient_w_m2_k
+        .map(|h| format!("\nsink_coefficient_w_m2_k = {h}"))
+        .unwrap_or_default();
+    design_with(
+        0.25,
+        &format!(
+            "glazing_tilt_deg = 0\nstages = 10\ngap_mm = 3\nsink = \"{sink}\"{extra}\n\
+             feed_l_h_m2 = 0.5\nside_insulation = [ {{ material = \"polystyrene-foam\", thickness_mm = 30 }} ]"
+        ),
+    )
 }
 
 #[test]
@@ -195,26 +230,144 @@ fn a_floating_ten_stage_stack_matches_chiavazzo_et_al() {
     // condenser with a hydrophobic membrane, not an open air gap; their absorber was a
     // commercial solar absorber under a transparent insulation layer where ours is black
     // paint under 3 mm glass; their device was lab-sized (of order 0.1–0.2 m square) and
-    // ours is 0.25 m square (the smallest size a design allows is just over 0.2 m), so edge and frame losses weigh as much as theirs; feed by capillary wicks from the sea, modelled as 0.5 L/h/m² per stage.
-    let loaded = design_with(
-        0.25,
-        "glazing_tilt_deg = 0\nstages = 10\ngap_mm = 3\nsink = \"water-body\"\n\
-         feed_l_h_m2 = 0.5\nside_insulation = [ { material = \"polystyrene-foam\", thickness_mm = 30 } ]",
+    // ours is 0.25 m square (the smallest size a design allows is just over 0.2 m), so edge
+    // and frame losses weigh as much as theirs; feed by capillary wicks from the sea,
+    // modelled as 0.5 L/h/m² per stage.
+    let water = steady(&chiavazzo_like("water-body", None));
+    let air = steady(&chiavazzo_like("air-fins", None));
+    eprintln!("Chiavazzo-like stack, water body: {water:?}\nair fins: {air:?}");
+    assert!((1.8..=4.2).contains(&water.rate_l_m2_h), "{water:?}");
+    // The same stack with finned air cooling (25 W/m²K) gives less, but only a few per cent,
+    // and that is what the physics supports (reviewed for issue 5, which hoped for "clearly
+    // less"):
+    // * The sink gets only what the losses leave, ≈ 190–240 W/m² of ≈ 800 absorbed (the
+    //   glazing and edges take the rest), so the last plate runs q/h ≈ 190/25 ≈ 7.5 K above
+    //   the air, not tens of kelvin, and the noon air is a few kelvin warmer than the water.
+    // * A diffusion gap passes latent heat in proportion to dp_sat/dT, which roughly doubles
+    //   every 12 K (Clausius–Clapeyron; IAPWS-IF97 gives 1.25 kPa/K at 65 °C against
+    //   0.245 at 30 °C, from memory), so the cold stages hold most of the stack's resistance
+    //   and a warmer bottom conducts better: the absorber, and with it the glazing loss
+    //   (≈ 6 W/m²K), hardly moves.
+    // * What remains is the edge and frame conductance of the lower stages (≈ 8 W/m²K of
+    //   footprint for the whole stack of this small device) times their rise, at most
+    //   ≈ 8 × 9 ≈ 75 W/m² of ≈ 540 W/m² entering the stack: a bound of ≈ 15 %.
+    assert!(air.sink_w_m2 / 25.0 < 10.0, "{air:?}");
+    assert!(air.rate_l_m2_h < water.rate_l_m2_h, "{air:?} vs {water:?}");
+    let drop = 1.0 - air.rate_l_m2_h / water.rate_l_m2_h;
+    assert!(drop < 0.15, "{drop}");
+    // The mechanism, checked directly: the last plate rises by several kelvin, the absorber
+    // by less than half as much.
+    let plate_rise = air.last_plate_c - water.last_plate_c;
+    let absorber_rise = air.absorber_c - water.absorber_c;
+    assert!(plate_rise > 3.0, "{plate_rise}");
+    assert!(
+        absorber_rise < 0.5 * plate_rise,
+        "{absorber_rise} vs {plate_rise}"
     );
-    let water = steady_rate_l_m2_h(&loaded);
-    // The same stack with finned air cooling gives less, because the last plate runs
-    // q/h_sink above the air and the whole stack with it (see the multi_effect module
-    // documentation). OPEN (issue 5 asks for "clearly less"): the model gives only ≈ 5 %
-    // less, since a hotter stack also diffuses more vapour per kelvin; only the strict
-    // ordering is checked here until the hot-stack losses are reviewed.
-    let mut air_loaded = loaded.clone();
-    if let design::VariantKind::MultiEffect(k) = &mut air_loaded.design.variants[0].kind {
-        k.sink = design::Sink::AirFins;
+}
+
+#[test]
+fn a_weaker_sink_costs_more_distillate_in_this_lossy_stack() {
+    // Sink coefficients from the reviewed defaults (src/design/schema.rs): 200 water body,
+    // 25 good fins, 8 a plain plate facing down in still air (Incropera et al., 6th ed.,
+    // eq. 9.32 convection ≈ 2–3 W/m²K plus ≈ 5 of radiation, from memory). With edge and
+    // glazing losses growing with the stack's temperature the yield falls as the sink weakens
+    // (a lossless stack could even gain, since warmer gaps carry more of their heat as
+    // vapour: that is why this is not a law but a property of the lossy geometry), and the
+    // last plate's rise above the sink is q/h by construction of the sink link.
+    let runs: Vec<(f64, Steady)> = [200.0, 25.0, 8.0]
+        .iter()
+        .map(|&h| (h, steady(&chiavazzo_like("air-fins", Some(h)))))
+        .collect();
+    for (h, s) in &runs {
+        eprintln!("h_sink {h}: {s:?}");
     }
-    let air = steady_rate_l_m2_h(&air_loaded);
-    eprintln!("Chiavazzo-like stack: water-body {water:.3} L/m²/h, air-fins {air:.3} L/m²/h");
-    assert!((1.8..=4.2).contains(&water), "{water}");
-    assert!(air < water, "{air} vs {water}");
+    for w in runs.windows(2) {
+        assert!(w[1].1.rate_l_m2_h < w[0].1.rate_l_m2_h, "{runs:?}");
+        assert!(w[1].1.last_plate_c > w[0].1.last_plate_c, "{runs:?}");
+    }
+    // A plain plate costs clearly more than good fins: its rise q/h is about three times
+    // theirs for a similar q, so the warm-stage losses grow by a multiple too.
+    let base = runs[0].1.rate_l_m2_h;
+    let fins = 1.0 - runs[1].1.rate_l_m2_h / base;
+    let plain = 1.0 - runs[2].1.rate_l_m2_h / base;
+    assert!(plain > 2.0 * fins, "fins {fins}, plain plate {plain}");
+}
+
+#[test]
+fn the_result_says_what_the_sink_does() {
+    // Issue 5: "the report says why". The day's details carry the sink heat, its day-mean
+    // q/h rise, the absorber and last-plate peaks, and a note in words. The rise is
+    // q ÷ (h × plate area) averaged over 24 h, so it must agree with the sink heat and the
+    // coefficient (1e-9 relative: the same arithmetic done twice).
+    let rises: Vec<f64> = ["water-body", "air-fins"]
+        .iter()
+        .map(|sink| {
+            let (_, d) = one_day(&chiavazzo_like(sink, None), 4);
+            let KindDetails::MultiEffect {
+                sink_coefficient_w_m2_k,
+                sink_heat_kwh_m2_day,
+                sink_rise_day_mean_k,
+                absorber_max_c,
+                last_plate_max_c,
+                sink_note,
+                glazing_gap_mm,
+                ..
+            } = d
+            else {
+                panic!("multi-effect details expected");
+            };
+            eprintln!(
+                "{sink}: {sink_heat_kwh_m2_day:.2} kWh/m²/day, rise {sink_rise_day_mean_k:.2} K, \
+                 absorber {absorber_max_c:.1} °C, last plate {last_plate_max_c:.1} °C\n{sink_note}"
+            );
+            // Tilt 0: plate area = footprint.
+            let expect = sink_heat_kwh_m2_day * 3.6e6 / 86_400.0 / sink_coefficient_w_m2_k;
+            assert!((sink_rise_day_mean_k / expect - 1.0).abs() < 1e-9);
+            assert!(sink_heat_kwh_m2_day > 0.0);
+            assert!(last_plate_max_c < absorber_max_c);
+            assert!(
+                sink_note.contains("q/h")
+                    && sink_note.contains(sink.split('-').next().unwrap())
+                    && sink_note.contains("coldest stages"),
+                "{sink_note}"
+            );
+            // Default glazing gap (docs/design-file.md): 20 mm.
+            assert!((glazing_gap_mm - 20.0).abs() < 1e-12);
+            sink_rise_day_mean_k
+        })
+        .collect();
+    // h falls eightfold (200 → 25) while the sink heat changes by tens of per cent at most,
+    // so the rise must grow several times.
+    assert!(rises[1] > 4.0 * rises[0], "{rises:?}");
+}
+
+#[test]
+fn the_glazing_gap_is_a_validated_design_field() {
+    // docs/design-file.md: glazing_gap_mm in [5, 100] mm.
+    let demo = design::DEMO_DESIGN;
+    let head = &demo[..demo.find("[[variant]]").unwrap()];
+    let text = |gap: f64| {
+        format!(
+            "{head}[[variant]]\nname = \"test\"\nkind = \"multi-effect\"\nwidth_m = 0.5\n\
+             length_m = 0.5\ncover_azimuth_deg = 180\ncover = \"window-glass-3mm\"\n\
+             plate = \"aluminium-plate\"\nabsorber = \"black-paint\"\nwick_cloth = \"cotton-cloth\"\n\
+             glazing_tilt_deg = 15\nstages = 3\nsink = \"air-fins\"\nglazing_gap_mm = {gap}\n"
+        )
+    };
+    let err = design::parse_design_str(&text(2.0), Path::new("t.toml"), &designs_dir())
+        .unwrap_err()
+        .to_string();
+    assert!(
+        err.contains("glazing_gap_mm") && err.contains("[5, 100]"),
+        "{err}"
+    );
+    let ok = design::parse_design_str(&text(40.0), Path::new("t.toml"), &designs_dir()).unwrap();
+    let (m, d) = one_day(&ok, 4);
+    assert!(m.energy.residual_fraction < 1e-3);
+    assert!(
+        matches!(d, KindDetails::MultiEffect { glazing_gap_mm, .. } if (glazing_gap_mm - 40.0).abs() < 1e-12)
+    );
 }
 
 proptest! {
