@@ -15,8 +15,6 @@ use crate::design::{BasinKind, Costs, Layer, Library, Sink, Variant, VariantKind
 pub const TRAY_FREEBOARD_M: f64 = 0.05;
 /// Wick cloth carried into the feed channel at the top [m] (common practice, no source).
 pub const WICK_FEED_OVERLAP_M: f64 = 0.1;
-/// Gap between glazing and absorber of a multi-effect still [m] (common practice, no source).
-pub const GLAZING_GAP_M: f64 = 0.03;
 /// Fin area per m² of last plate for an air-cooled sink [-] (common practice, no source: the
 /// lower end of the 3–5 assumed by [`Sink::default_coefficient_w_m2_k`]).
 pub const FIN_AREA_RATIO: f64 = 3.0;
@@ -726,7 +724,8 @@ pub fn takeoff(v: &Variant, index: usize, lib: &Library, c: &Costs) -> Takeoff {
                 .get(&k.plate)
                 .and_then(|i| i.plate)
                 .map_or(0.001, |p| mm(p.thickness_mm));
-            let depth = fnn * g + (fnn + 1.0) * plate_t + GLAZING_GAP_M;
+            let glazing_gap_m = mm(k.glazing_gap_mm);
+            let depth = fnn * g + (fnn + 1.0) * plate_t + glazing_gap_m;
             out.push(
                 Need::new(
                     "glazing",
@@ -795,7 +794,7 @@ pub fn takeoff(v: &Variant, index: usize, lib: &Library, c: &Costs) -> Takeoff {
                     "costs.items.wall_panel",
                     &format!(
                         "2·D·(W/cos θ + L), D = n·g + (n+1)·plate + {:.0} mm glazing gap",
-                        GLAZING_GAP_M * 1000.0
+                        k.glazing_gap_mm
                     ),
                     Amount::AreaM2(2.0 * depth * (s + l)),
                     Contact::Dry,
