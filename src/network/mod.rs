@@ -65,3 +65,4 @@ pub use solver::{
     FailReason, LinkRecord, NodeRecord, Solver, SolverSettings, StepEvent, StepOutcome, StepRecord,
 };
 pub use state::{Inputs, State, TEMPERATURE_RANGE_K};
+pub(crate) use state::{crust_kg, dissolved_salinity};

@@ -14,7 +14,7 @@
 use nalgebra::DMatrix;
 
 use super::build::{End, LinkKind, Network, NetworkError};
-use super::state::{Inputs, State, TEMPERATURE_RANGE_K, salinity};
+use super::state::{Inputs, State, TEMPERATURE_RANGE_K, dissolved_salinity, salinity};
 use crate::physics::constants::STEFAN_BOLTZMANN_W_M2_K4;
 
 /// Newton settings. Validated by [`Solver::new`].
@@ -218,7 +218,8 @@ pub struct NodeRecord {
     pub drain_enthalpy_w: f64,
     /// Salt entering with the feed [kg s⁻¹].
     pub feed_salt_kg_s: f64,
-    /// Salt leaving with the drained brine, at the salinity of the step's start [kg s⁻¹].
+    /// Salt leaving with the drained brine, at the dissolved salinity of the step's start
+    /// (a crust stays behind) [kg s⁻¹].
     pub drain_salt_kg_s: f64,
     /// Temperature change over the step [K].
     pub temperature_change_k: f64,
@@ -459,8 +460,16 @@ impl<'n> Solver<'n> {
         for (i, nr) in record.nodes.iter_mut().enumerate() {
             if net.nodes[i].holds_water {
                 nr.feed_salt_kg_s = nr.feed_kg_s * inputs.feed_salinity_g_kg[i] / 1000.0;
-                nr.drain_salt_kg_s =
-                    nr.drain_kg_s * salinity(self.consts.m0[i], state.salt_kg[i]) / 1000.0;
+                // The drain takes liquid brine: the crust stays behind. Never more salt than
+                // the node holds plus what the feed brings, so the salt booked out is the salt
+                // that leaves the state.
+                let dissolved = dissolved_salinity(self.consts.m0[i], state.salt_kg[i]);
+                let available_kg_s = if dt_s.is_finite() {
+                    state.salt_kg[i].max(0.0) / dt_s + nr.feed_salt_kg_s
+                } else {
+                    f64::INFINITY
+                };
+                nr.drain_salt_kg_s = (nr.drain_kg_s * dissolved / 1000.0).min(available_kg_s);
             }
         }
 
@@ -514,14 +523,20 @@ impl<'n> Solver<'n> {
 
     /// Brine and salt of water node `i` at the end of a converged step [kg]: evaporation
     /// takes pure water, feed brings salt at the feed salinity, the drain takes it at the
-    /// salinity of the step's start (the record's salt flows).
+    /// dissolved salinity of the step's start (the record's salt flows).
+    ///
+    /// Exactly the record's flows, never clamped: the water left (brine − salt) may come out
+    /// negative, and the caller must treat that as a dry-out inside the step rather than
+    /// accept it. (Clamping the salt to the brine here once hid such overdrafts: the water
+    /// evaporated beyond what the node held was booked as distillate while the state lost
+    /// the same mass of salt, issue 6.)
     fn masses_after(&self, state: &State, record: &StepRecord, dt_s: f64, i: usize) -> (f64, f64) {
         let m0 = self.consts.m0[i];
         let salt0 = state.salt_kg[i];
         let nr = &record.nodes[i];
         let m1 = m0 + dt_s * self.consts.inflow[i];
         let salt1 = salt0 + dt_s * (nr.feed_salt_kg_s - nr.drain_salt_kg_s);
-        (m1, salt1.clamp(0.0, m1.max(0.0)))
+        (m1, salt1)
     }
 
     fn newton(&mut self, inputs: &Inputs, inv_dt: f64) -> Result<u32, FailReason> {

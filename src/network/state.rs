@@ -2,6 +2,7 @@
 //! (boundary temperatures, sources, conductances, feed and drain).
 
 use super::build::{BoundaryId, LinkId, LinkKind, Network, NetworkError, NodeId};
+use super::models::SALT_SATURATION_G_KG;
 
 /// Lowest and highest temperatures the network accepts anywhere [K]: outside them the
 /// water properties and the internal-transfer correlations have no meaning.
@@ -108,6 +109,26 @@ impl State {
         self.brine_kg[node.0] = brine_kg;
         self.salt_kg[node.0] = brine_kg * salinity_g_kg / 1000.0;
         Ok(())
+    }
+}
+
+/// Salt beyond what the water in `brine_kg` [kg] of brine holding `salt_kg` [kg] of salt can
+/// dissolve at [`SALT_SATURATION_G_KG`] [kg]: the crust lying on the liner.
+pub(crate) fn crust_kg(brine_kg: f64, salt_kg: f64) -> f64 {
+    let water = (brine_kg - salt_kg).max(0.0);
+    let dissolvable = water * SALT_SATURATION_G_KG / (1000.0 - SALT_SATURATION_G_KG);
+    (salt_kg - dissolvable).max(0.0)
+}
+
+/// Salinity of the liquid part of the brine, the crust left out [g kg⁻¹] (0 when no liquid
+/// is left).
+pub(crate) fn dissolved_salinity(brine_kg: f64, salt_kg: f64) -> f64 {
+    let c = crust_kg(brine_kg, salt_kg);
+    let liquid = brine_kg - c;
+    if liquid > 0.0 {
+        (1000.0 * (salt_kg - c) / liquid).clamp(0.0, SALT_SATURATION_G_KG)
+    } else {
+        0.0
     }
 }
 

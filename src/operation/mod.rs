@@ -36,24 +36,18 @@ pub const SCALING_WARNING_SHARE: f64 = 0.8;
 /// (NaCl, REFERENCES.md §8 [M]); the rest lies on the liner.
 ///
 /// Notes: the network keeps the crust inside its brine mass (it adds heat capacity as if
-/// dissolved, a small error) and caps the vapour-pressure lowering at saturation. The crust
-/// is not given a lower solar absorptance: no source at hand says by how much a white salt
-/// crust lowers a black liner's absorptance, so it is reported, not modelled.
+/// dissolved, a small error), caps the vapour-pressure lowering at saturation and drains
+/// brine at the dissolved salinity, so a flush leaves the crust behind. The crust is not
+/// given a lower solar absorptance: no source at hand says by how much a white salt crust
+/// lowers a black liner's absorptance, so it is reported, not modelled.
 pub fn crust_kg(brine_kg: f64, salt_kg: f64) -> f64 {
-    let water = (brine_kg - salt_kg).max(0.0);
-    let dissolvable = water * SALT_SATURATION_G_KG / (1000.0 - SALT_SATURATION_G_KG);
-    (salt_kg - dissolvable).max(0.0)
+    crate::network::crust_kg(brine_kg, salt_kg)
 }
 
-/// Salinity of the liquid brine, the crust left out [g kg⁻¹].
+/// Salinity of the liquid brine, the crust left out [g kg⁻¹]. Flushing and overflow drain
+/// brine at this salinity: the crust stays on the liner.
 pub fn dissolved_salinity_g_kg(brine_kg: f64, salt_kg: f64) -> f64 {
-    let c = crust_kg(brine_kg, salt_kg);
-    let liquid = brine_kg - c;
-    if liquid > 0.0 {
-        (1000.0 * (salt_kg - c) / liquid).clamp(0.0, SALT_SATURATION_G_KG)
-    } else {
-        0.0
-    }
+    crate::network::dissolved_salinity(brine_kg, salt_kg)
 }
 
 /// Depth of the liquid brine over a basin of `area_m2` [m²] [mm], at 1000 kg m⁻³ (the density
@@ -87,6 +81,8 @@ pub fn scaling_warnings(peak_salinity_g_kg: f64) -> Vec<String> {
 pub struct BasinView {
     /// Brine mass, crust included [kg].
     pub brine_kg: f64,
+    /// Liquid brine, the crust left out [kg].
+    pub liquid_kg: f64,
     /// Liquid depth [mm].
     pub depth_mm: f64,
     /// Salinity of the liquid [g kg⁻¹].
@@ -175,8 +171,11 @@ impl Operator {
         let dt_h = dt_s / 3600.0;
         // A flush never drains below 1.5 × the wetting depth, so the liner stays wet while it
         // refills (common practice, no source).
+        // Only the liquid drains: a crust stays on the liner (the network drains brine at the
+        // dissolved salinity), so the limit is on the liquid depth, not on the brine mass.
         let wet_kg = 1.5 * op.wetting_depth_mm * self.area_m2;
-        let above_wet = (view.brine_kg - wet_kg).max(0.0);
+        let liquid_kg = view.liquid_kg;
+        let above_wet = (liquid_kg - wet_kg).max(0.0);
         // Flush first: the brine goes out before fresh feed comes in.
         let flush_time = match op.feed {
             FeedMode::Batch => op.refill_hours.first().copied(),
@@ -209,13 +208,16 @@ impl Operator {
         if flush_time || drain_kg > 0.0 || bleed {
             self.distillate_since_flush_kg = 0.0;
         }
-        let after_drain = view.brine_kg - drain_kg;
+        let after_drain = liquid_kg - drain_kg;
         let mut feed_kg = 0.0;
         match op.feed {
             FeedMode::Batch => {
                 let refill_now = op.refill_hours.iter().any(|&h| within(h, start_h, dt_h));
                 if self.refill_next || (refill_now && !flushed) {
-                    feed_kg = (self.set_kg - view.brine_kg).max(0.0);
+                    // Topped up to the set depth of liquid: a crust is not water, and
+                    // counting it as such would shrink each refill until the basin is all
+                    // crust.
+                    feed_kg = (self.set_kg - liquid_kg).max(0.0);
                     self.refill_next = false;
                 } else if refill_now && flushed {
                     self.refill_next = true;
@@ -231,7 +233,7 @@ impl Operator {
             }
             FeedMode::Drip => {
                 feed_kg = op.drip_l_h.unwrap_or(0.0) * KG_PER_L * dt_h;
-                // Overflow lip at the set depth.
+                // Overflow lip at the set depth of liquid.
                 drain_kg += (after_drain + feed_kg - self.set_kg).max(0.0);
             }
             FeedMode::Controller => {

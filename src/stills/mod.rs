@@ -98,6 +98,7 @@ pub fn basin_view(state: &State, basin: &Basin) -> BasinView {
     let salt = state.salt_kg(basin.node).unwrap_or(0.0);
     BasinView {
         brine_kg: m,
+        liquid_kg: m - crate::operation::crust_kg(m, salt),
         depth_mm: crate::operation::depth_mm(m, salt, basin.area_m2),
         salinity_g_kg: crate::operation::dissolved_salinity_g_kg(m, salt),
     }

@@ -78,18 +78,94 @@ fn water_and_salt_balances_close_for_every_feed_and_flush_mode() {
     }
 }
 
+/// Water and salt residuals within 1e-9 of the feed and the energy residual within 0.1 % of
+/// the absorbed sunlight, for every month of `r`; returns the network dry-out events and the
+/// largest end-of-day crust [kg] seen.
+fn assert_balances_close(months: &[stills::MonthResult], what: &str) -> (u32, f64) {
+    // Derived: water in = distillate + leaked vapour + water flushed + change of stored
+    // water; salt in = salt flushed + salt precipitated + change of dissolved salt. 1e-9
+    // relative is round-off over a day of steps. The energy bound is the product's 0.1 %
+    // of the absorbed sunlight (DESIGN.md, issue 4).
+    let (mut events, mut crust) = (0, 0.0_f64);
+    for m in months {
+        let o = m.operation.as_ref().unwrap();
+        let (w, s) = (o.mass.water_residual(), o.mass.salt_residual());
+        assert!(w.abs() < 1e-9, "{what}: month {} water {w:e}", m.month);
+        assert!(s.abs() < 1e-9, "{what}: month {} salt {s:e}", m.month);
+        let e = m.energy.residual_fraction;
+        assert!(e < 1e-3, "{what}: month {} energy {e:e}", m.month);
+        events += o.dry_out_events;
+        crust = crust.max(o.crust_kg);
+    }
+    (events, crust)
+}
+
 #[test]
-#[ignore = "open: on a day when the brine runs fully dry (a network dry-out event) the water booked out exceeds the water lost by about 3 % of the feed"]
 fn water_balance_closes_on_a_day_the_basin_runs_dry() {
-    // Derived balance as above, 1e-9 relative.
+    // Issue 6: on a day when the brine ran fully dry the water booked out exceeded the water
+    // lost by 3.5 % of the feed: the network clamped the salt to the brine mass before
+    // judging the dry-out, so evaporation past the last water was accepted and booked as
+    // distillate while the same mass of salt vanished from the state.
+    //
+    // 3 mm topped up at 06:00 (after the day's flush) and 15:00 runs fully dry in the sunny
+    // months and is periodic, since the 06:00 flush carries the salt out; the brine reaches
+    // NaCl saturation (264 g/kg) before it dries, so salt crusts on the liner and redissolves
+    // at the refill.
     let r = run(
-        &design(5.0, "refill_hours = [15.0]"),
+        &design(3.0, "refill_hours = [6.0, 15.0]\nwetting_depth_mm = 1.0"),
         &RunOptions::default(),
     );
-    for m in &r.months {
-        let o = m.operation.as_ref().unwrap();
-        assert!(o.mass.water_residual().abs() < 1e-9, "month {}", m.month);
+    let (events, _) = assert_balances_close(&r.months, "dries daily");
+    assert!(events > 0, "the case must run fully dry at least once");
+    assert!(op(&r, SUNNIEST).dry_out_events > 0);
+    assert!(op(&r, SUNNIEST).peak_salinity_g_kg >= 264.0 - 1e-6);
+}
+
+#[test]
+fn water_and_salt_balances_close_while_a_crust_grows() {
+    // 5 mm topped up at 07:00 and never flushed: every kilogram of salt fed stays, the brine
+    // passes NaCl saturation (264 g/kg) by the evening and the crust grows day by day (never
+    // periodic).
+    // Run as a weather file: the demo's April day repeated, one day booked per month slot.
+    let loaded = design(5.0, "refill_hours = [7.0]\nflush = \"none\"");
+    let mut w = stills::site_weather(&loaded).unwrap();
+    let april: Vec<_> = w
+        .series
+        .hours
+        .iter()
+        .filter(|h| h.month == SUNNIEST)
+        .cloned()
+        .collect();
+    let days = 12u32;
+    let mut hours = Vec::new();
+    for d in 0..days {
+        for h in &april {
+            let mut h = *h;
+            h.month = d + 1;
+            h.day_of_year = 91 + d;
+            hours.push(h);
+        }
     }
+    w.series.hours = hours;
+    w.average_days = false;
+    w.month_mean_air_k = [w.month_mean_air_k[SUNNIEST as usize - 1]; 12];
+    let r = stills::simulate_variant(
+        &loaded,
+        &loaded.design.variants[0],
+        &w,
+        &RunOptions::default(),
+    )
+    .unwrap();
+    let (_, crust) = assert_balances_close(&r.months[..days as usize], "crusts");
+    assert!(crust > 0.0, "a crust forms: {crust}");
+    // The crust grows: more salt lies on the liner at the end of the last day than the first.
+    let first = r.months[0].operation.as_ref().unwrap().crust_kg;
+    let last = r.months[days as usize - 1]
+        .operation
+        .as_ref()
+        .unwrap()
+        .crust_kg;
+    assert!(last > first, "{first} then {last}");
 }
 
 #[test]
@@ -155,11 +231,11 @@ fn a_late_batch_refill_dries_a_shallow_basin_in_the_hot_month() {
     // before the refill; topping up at 07:00 and 13:00 keeps it wet. Common practice, no
     // source.
     let late = run(
-        &design(5.0, "refill_hours = [15.0]"),
+        &design(4.0, "refill_hours = [15.0]"),
         &RunOptions::default(),
     );
     let twice = run(
-        &design(5.0, "refill_hours = [7.0, 13.0]"),
+        &design(4.0, "refill_hours = [7.0, 10.0, 13.0]"),
         &RunOptions::default(),
     );
     assert!(
