@@ -11,6 +11,7 @@
 #![deny(clippy::float_cmp)]
 
 pub mod climate;
+pub mod compare;
 pub mod design;
 pub mod economics;
 pub mod error;
