@@ -191,7 +191,11 @@ pub struct Audit {
 
 /// Classify a claim against a ceiling: impossible above it, implausible above
 /// `implausible_fraction` of it, plausible otherwise.
-pub fn classify(claimed_l_m2_day: f64, ceiling_l_m2_day: f64, implausible_fraction: f64) -> Verdict {
+pub fn classify(
+    claimed_l_m2_day: f64,
+    ceiling_l_m2_day: f64,
+    implausible_fraction: f64,
+) -> Verdict {
     if claimed_l_m2_day > ceiling_l_m2_day {
         Verdict::Impossible
     } else if claimed_l_m2_day > implausible_fraction * ceiling_l_m2_day {
@@ -205,7 +209,11 @@ fn check_claim(c: &Claim) -> Result<(), AuditError> {
     if !KIND_NAMES.contains(&c.kind.as_str()) {
         return Err(bad(
             ClaimField::Kind,
-            format!("unknown kind `{}`; kinds: {}", c.kind, KIND_NAMES.join(", ")),
+            format!(
+                "unknown kind `{}`; kinds: {}",
+                c.kind,
+                KIND_NAMES.join(", ")
+            ),
         ));
     }
     if !(c.area_m2.is_finite() && c.area_m2 > 0.0 && c.area_m2 <= 1e6) {
@@ -229,7 +237,10 @@ fn check_claim(c: &Claim) -> Result<(), AuditError> {
     if c.stages.is_some() && c.kind != "multi-effect" {
         return Err(bad(
             ClaimField::Stages,
-            format!("a stage count applies to multi-effect stills, not {}", c.kind),
+            format!(
+                "a stage count applies to multi-effect stills, not {}",
+                c.kind
+            ),
         ));
     }
     Ok(())
@@ -383,7 +394,11 @@ pub fn audit(
         }
         None => {
             let w = |f: &dyn Fn(&DaySun) -> f64| {
-                sun.iter().zip(MONTH_DAYS).map(|(s, d)| f(s) * d).sum::<f64>() / 365.0
+                sun.iter()
+                    .zip(MONTH_DAYS)
+                    .map(|(s, d)| f(s) * d)
+                    .sum::<f64>()
+                    / 365.0
             };
             (
                 "mean day of the year".to_owned(),
@@ -448,7 +463,9 @@ pub fn audit(
     if let (Some(g), Some(n)) = (gor, stages) {
         let from = match &basis {
             CoverBasis::Variant { name } => {
-                format!("the annual gain output ratio our model gives `{name}` with {n} stages on this site")
+                format!(
+                    "the annual gain output ratio our model gives `{name}` with {n} stages on this site"
+                )
             }
             CoverBasis::DefaultGlass { .. } => format!(
                 "the stage count: an ideal {n}-stage stack reuses each kilogram's latent heat at most once per stage"

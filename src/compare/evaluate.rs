@@ -146,7 +146,12 @@ fn evaluate_one(
         capital_per_l_day: cost.cost.capital / worst_l_day,
         complexity_points: cost.complexity.score,
     };
-    let mut not_local: Vec<String> = cost.bom.unavailable.iter().map(|u| u.item.clone()).collect();
+    let mut not_local: Vec<String> = cost
+        .bom
+        .unavailable
+        .iter()
+        .map(|u| u.item.clone())
+        .collect();
     not_local.sort();
     not_local.dedup();
     Ok(Outcome::Done(Box::new(Evaluation {

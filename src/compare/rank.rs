@@ -183,7 +183,9 @@ fn parse_list(s: &str, base: [f64; 5], what: &str) -> Result<[f64; 5], BadList> 
                 .map(|key| (strsim::levenshtein(k, key), key))
                 .min()
                 .filter(|(d, _)| *d <= 3)
-                .map_or(String::new(), |(_, key)| format!(" (did you mean `{key}`?)"));
+                .map_or(String::new(), |(_, key)| {
+                    format!(" (did you mean `{key}`?)")
+                });
             return Err(BadList(format!(
                 "unknown {what} `{k}`{hint}; keys: {}",
                 keys.join(", ")
@@ -441,7 +443,11 @@ pub fn rank(
             }
         })
         .collect();
-    ranked.sort_by(|a, b| b.score.total_cmp(&a.score).then_with(|| a.name.cmp(&b.name)));
+    ranked.sort_by(|a, b| {
+        b.score
+            .total_cmp(&a.score)
+            .then_with(|| a.name.cmp(&b.name))
+    });
     for (i, r) in ranked.iter_mut().enumerate() {
         r.rank = i + 1;
     }
@@ -514,7 +520,11 @@ fn explain(r: &Ranked, all: &[Ranked], weights: &Weights, currency: &str) -> Str
             } else {
                 ""
             };
-            format!("{} {}{tag}", c.label(), figure(c, r.values.get(c), currency))
+            format!(
+                "{} {}{tag}",
+                c.label(),
+                figure(c, r.values.get(c), currency)
+            )
         };
         let wins: Vec<String> = margins
             .iter()
