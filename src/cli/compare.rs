@@ -197,7 +197,7 @@ pub fn write_text(out: &mut impl Write, rep: &Report) -> std::io::Result<()> {
     writeln!(out)?;
     writeln!(
         out,
-        "rank  {:<20} {:>6}  {:>10}  {:>9}  {:>8}  {:>10}  {:>10}  front  flags",
+        "rank  {:<20} {:>6}  {:>10}  {:>14}  {:>8}  {:>12}  {:>10}  front  flags",
         "variant",
         "score",
         "L/m²/year",
@@ -210,7 +210,7 @@ pub fn write_text(out: &mut impl Write, rep: &Report) -> std::io::Result<()> {
         let v = &r.values;
         writeln!(
             out,
-            "{:>4}  {:<20} {:>6.3}  {:>10.0}  {:>14.2}  {:>8.3}  {:>10.0}  {:>10.0}  {:<5}  {}",
+            "{:>4}  {:<20} {:>6.3}  {:>10.0}  {:>14.2}  {:>8.3}  {:>12.0}  {:>10.0}  {:<5}  {}",
             r.rank,
             r.name,
             r.score,

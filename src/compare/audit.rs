@@ -490,9 +490,14 @@ pub fn audit(
         Verdict::Implausible => format!(
             "Implausible: above {:.0} % of the ceiling ({:.2} L/m²/day). Well-built basin stills \
              reach 25–45 % daily efficiency, so claims far above 60 % of the ceiling are \
-             implausible (REFERENCES.md §8); ask for measured daily records with the sunlight.",
+             implausible (REFERENCES.md §8){}; ask for measured daily records with the sunlight.",
             IMPLAUSIBLE_FRACTION * 100.0,
-            IMPLAUSIBLE_FRACTION * ceiling
+            IMPLAUSIBLE_FRACTION * ceiling,
+            if multi {
+                " — here applied to the first stage, whose heat the stack then reuses"
+            } else {
+                ""
+            }
         ),
         Verdict::Plausible => format!(
             "Plausible: at or below {:.0} % of the ceiling ({:.2} L/m²/day), within what \
@@ -501,21 +506,21 @@ pub fn audit(
             IMPLAUSIBLE_FRACTION * ceiling
         ),
     });
-    if claim.month.is_none() {
-        if let Some((i, best)) = sun
-            .iter()
-            .enumerate()
-            .max_by(|a, b| a.1.entering_kwh_m2_day.total_cmp(&b.1.entering_kwh_m2_day))
-        {
-            let best_ceiling = ceiling_of(best) * gor.unwrap_or(1.0);
-            if best_ceiling > 0.0 {
-                reasoning.push(format!(
-                    "Even in the sunniest month ({}) it would be {:.0} % of that month's ceiling ({:.2} L/m²/day).",
-                    MONTH_NAMES[i],
-                    claimed / best_ceiling * 100.0,
-                    best_ceiling
-                ));
-            }
+    let sunniest = sun
+        .iter()
+        .enumerate()
+        .max_by(|a, b| a.1.entering_kwh_m2_day.total_cmp(&b.1.entering_kwh_m2_day));
+    if claim.month.is_none()
+        && let Some((i, best)) = sunniest
+    {
+        let best_ceiling = ceiling_of(best) * gor.unwrap_or(1.0);
+        if best_ceiling > 0.0 {
+            reasoning.push(format!(
+                "Even in the sunniest month ({}) it would be {:.0} % of that month's ceiling ({:.2} L/m²/day).",
+                MONTH_NAMES[i],
+                claimed / best_ceiling * 100.0,
+                best_ceiling
+            ));
         }
     }
     Ok(Audit {

@@ -360,7 +360,7 @@ fn multi_effect_ceiling_is_raised_by_the_gain_output_ratio() {
     let g = a.gain_output_ratio.unwrap();
     // DESIGN.md: a multi-effect still exceeds the single-effect ceiling by its gain output
     // ratio; an ideal 4-stage stack reuses the latent heat at most 4 times.
-    assert!(g >= 1.0 && g <= 4.0, "{g}");
+    assert!((1.0..=4.0).contains(&g), "{g}");
     assert!((a.ceiling_l_m2_day - g * a.single_effect_ceiling_l_m2_day).abs() < 1e-9);
     // 12 L/m²/day is impossible for one effect but not for this stack.
     assert_ne!(a.verdict, Verdict::Impossible);
