@@ -12,6 +12,7 @@
 
 pub mod cautions;
 pub mod climate;
+pub mod compare;
 pub mod design;
 pub mod economics;
 pub mod error;

@@ -4,8 +4,10 @@
 use clap::{Parser, Subcommand};
 use stillbench::ExitCode;
 
+mod audit;
 mod check;
 mod climate;
+mod compare;
 mod cost;
 mod operate;
 mod simulate;
@@ -39,6 +41,12 @@ enum Command {
     /// Feed, brine depth, salinity and flushing of each basin still over the day, and a
     /// depth study (`--depth-sweep 5..100`).
     Operate(operate::OperateArgs),
+    /// Rank the variants on yield, worst month, cost per litre, capital per L/day and build
+    /// complexity with your weights; Pareto front and a sentence per variant.
+    Compare(compare::CompareArgs),
+    /// Check a claimed yield against the site's sunlight: impossible, implausible or
+    /// plausible, with the reasoning.
+    Audit(audit::AuditArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -50,6 +58,8 @@ pub fn main() -> std::process::ExitCode {
         Command::Simulate(args) => simulate::run(&args),
         Command::Cost(args) => cost::run(&args),
         Command::Operate(args) => operate::run(&args),
+        Command::Compare(args) => compare::run(&args),
+        Command::Audit(args) => audit::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),

@@ -2,6 +2,7 @@
 
 mod cli;
 mod climate;
+mod compare;
 mod design;
 mod economics;
 mod network;

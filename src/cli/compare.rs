@@ -1,0 +1,283 @@
+//! `stillbench compare [DESIGN] [--weights …] [--scales …] [--format text|json|csv]`: run and
+//! cost every variant, rank them on fixed reference scales, show the Pareto front and explain
+//! each place.
+
+use std::io::Write;
+use std::path::PathBuf;
+
+use anyhow::Context;
+use stillbench::compare::{self, Criterion, DesignEvaluation, Ranked, Scales, Weights};
+use stillbench::design::{DesignErrors, DesignIssue};
+use stillbench::stills;
+
+/// Output formats.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum Format {
+    /// A readable ranking table, the Pareto front and a sentence per variant.
+    Text,
+    /// JSON: weights, scales, the ranking with every figure, the front, skipped variants.
+    Json,
+    /// CSV: one row per ranked variant.
+    Csv,
+}
+
+fn parse_weights(s: &str) -> Result<Weights, String> {
+    s.parse::<Weights>().map_err(|e| e.to_string())
+}
+
+/// Arguments of `compare`.
+#[derive(Debug, clap::Args)]
+#[command(
+    after_help = "Criteria and their keys (for --weights and --scales):\n  \
+    yield        annual distillate per m² of footprint [L/m²/year], reference 1825\n  \
+    worst-month  mean daily distillate per m² in the worst month [L/m²/day], reference 5\n  \
+    cost         cost per litre over the life [currency/L], reference 0.10 USD/L\n  \
+    capital      capital per L/day of worst-month capacity [currency per L/day], reference 200 USD\n  \
+    complexity   build-complexity score [points], reference 200\n\
+    A yield scores 1 at its reference and 0 at nothing; a cost scores 1 at nothing and 0 at its\n\
+    reference (linear both ways). The score is the weighted mean, so adding or removing a\n\
+    variant never reorders the others.\n\n\
+    Examples:\n  stillbench compare designs/demo-coast.toml\n  \
+    stillbench compare designs/demo-coast.toml --weights cost=4,complexity=0 --format csv"
+)]
+pub struct CompareArgs {
+    /// The design file (TOML). Without it, the built-in demo design is compared.
+    pub design: Option<PathBuf>,
+    /// Weights as key=value pairs (yield, worst-month, cost, capital, complexity); unlisted
+    /// keys keep their defaults: yield=1,worst-month=2,cost=2,capital=1,complexity=1.
+    #[arg(long, value_name = "LIST", value_parser = parse_weights)]
+    pub weights: Option<Weights>,
+    /// Reference scales as key=value pairs, replacing the defaults shown below; money in the
+    /// design's currency. Required (cost and capital) when the design does not count in USD.
+    #[arg(long, value_name = "LIST")]
+    pub scales: Option<String>,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+}
+
+fn bad_option(file: &std::path::Path, option: &str, message: String) -> anyhow::Error {
+    stillbench::Error::Design(DesignErrors(vec![DesignIssue {
+        file: file.to_path_buf(),
+        line_col: None,
+        path: option.into(),
+        message,
+    }]))
+    .into()
+}
+
+/// The reference scales for a design counting in `currency`.
+fn scales_for(
+    file: &std::path::Path,
+    given: Option<&str>,
+    currency: &str,
+) -> anyhow::Result<Scales> {
+    let defaults = Scales::default();
+    let keys: Vec<&str> = given
+        .unwrap_or("")
+        .split(',')
+        .filter_map(|p| p.split_once('=').map(|(k, _)| k.trim()))
+        .collect();
+    if currency != defaults.currency {
+        for money in [Criterion::CostPerLitre, Criterion::CapitalPerCapacity] {
+            if !keys.contains(&money.key()) {
+                return Err(bad_option(
+                    file,
+                    "--scales",
+                    format!(
+                        "the default {} scale is in {}, but the design counts in {currency}; \
+                         give `--scales cost=…,capital=…` in {currency}",
+                        money.label(),
+                        defaults.currency
+                    ),
+                ));
+            }
+        }
+    }
+    Scales::parse(given.unwrap_or(""), currency)
+        .map_err(|e| bad_option(file, "--scales", e.to_string()))
+}
+
+/// Everything the command prints.
+#[derive(Debug, serde::Serialize)]
+pub struct Report {
+    /// Design title.
+    pub design: String,
+    /// Currency of every money figure.
+    pub currency: String,
+    /// Criterion keys in the order of every array below.
+    pub criteria: Vec<&'static str>,
+    /// Weights by criterion.
+    pub weights: [f64; 5],
+    /// Reference scales by criterion.
+    pub scales: [f64; 5],
+    /// Best first.
+    pub ranking: Vec<Ranked>,
+    /// Names on the Pareto front, best rank first.
+    pub pareto_front: Vec<String>,
+    /// Variants left out, with why.
+    pub skipped: Vec<compare::Skipped>,
+}
+
+/// Build the report from an evaluation.
+pub fn report(
+    title: &str,
+    ev: &DesignEvaluation,
+    weights: &Weights,
+    scales: &Scales,
+) -> anyhow::Result<Report> {
+    let ranking = compare::rank(&ev.candidates(), weights, scales)
+        .map_err(|e| anyhow::anyhow!("ranking: {e}"))?;
+    let pareto_front = ranking
+        .iter()
+        .filter(|r| r.pareto)
+        .map(|r| r.name.clone())
+        .collect();
+    Ok(Report {
+        design: title.to_owned(),
+        currency: ev.currency.clone(),
+        criteria: Criterion::ALL.iter().map(|c| c.key()).collect(),
+        weights: weights.0,
+        scales: scales.reference,
+        ranking,
+        pareto_front,
+        skipped: ev.skipped.clone(),
+    })
+}
+
+/// Run `compare`.
+pub fn run(args: &CompareArgs) -> anyhow::Result<()> {
+    let loaded = super::load(args.design.as_deref())?;
+    let currency = loaded.design.project.currency.clone();
+    let scales = scales_for(&loaded.source, args.scales.as_deref(), &currency)?;
+    let weights = args.weights.unwrap_or_default();
+    let weather = stills::site_weather(&loaded)?;
+    let ev = compare::evaluate_design(&loaded, &weather, &stills::RunOptions::default())?;
+    for s in &ev.skipped {
+        eprintln!("note: `{}` is not ranked: {}", s.name, s.reason);
+    }
+    let rep = report(&loaded.design.project.title, &ev, &weights, &scales)?;
+    let mut out = std::io::stdout().lock();
+    match args.format {
+        Format::Text => write_text(&mut out, &rep)?,
+        Format::Json => {
+            serde_json::to_writer_pretty(&mut out, &rep).context("writing JSON")?;
+            writeln!(out)?;
+        }
+        Format::Csv => write_csv(&mut out, &rep)?,
+    }
+    Ok(())
+}
+
+/// Write the report as text.
+pub fn write_text(out: &mut impl Write, rep: &Report) -> std::io::Result<()> {
+    let cur = &rep.currency;
+    writeln!(out, "{}\n", rep.design)?;
+    let total: f64 = rep.weights.iter().sum();
+    let w: Vec<String> = Criterion::ALL
+        .iter()
+        .map(|c| {
+            let x = rep.weights[c.index()];
+            format!("{} {x} ({:.0} %)", c.key(), x / total * 100.0)
+        })
+        .collect();
+    writeln!(out, "weights: {}", w.join(", "))?;
+    writeln!(
+        out,
+        "reference scales (linear; a yield scores 1 at its reference, a cost 0 at its reference):"
+    )?;
+    for c in Criterion::ALL {
+        writeln!(
+            out,
+            "  {:<44} {}",
+            c.label(),
+            compare::rank::figure(c, rep.scales[c.index()], cur)
+        )?;
+    }
+    writeln!(out)?;
+    writeln!(
+        out,
+        "rank  {:<20} {:>6}  {:>10}  {:>14}  {:>8}  {:>12}  {:>10}  front  flags",
+        "variant",
+        "score",
+        "L/m²/year",
+        "worst L/m²/day",
+        format!("{cur}/L"),
+        format!("{cur}/(L/day)"),
+        "complexity"
+    )?;
+    for r in &rep.ranking {
+        let v = &r.values;
+        writeln!(
+            out,
+            "{:>4}  {:<20} {:>6.3}  {:>10.0}  {:>14.2}  {:>8.3}  {:>12.0}  {:>10.0}  {:<5}  {}",
+            r.rank,
+            r.name,
+            r.score,
+            v.annual_l_m2,
+            v.worst_month_l_m2_day,
+            v.cost_per_l,
+            v.capital_per_l_day,
+            v.complexity_points,
+            if r.pareto { "yes" } else { "–" },
+            if r.not_local.is_empty() {
+                String::new()
+            } else {
+                format!("NOT LOCAL: {}", r.not_local.join(", "))
+            }
+        )?;
+    }
+    writeln!(
+        out,
+        "\nPareto front (no other variant at least as good on every criterion and better on one): {}",
+        rep.pareto_front.join(", ")
+    )?;
+    writeln!(out, "\nWhy each variant stands where it does:")?;
+    for r in &rep.ranking {
+        writeln!(out, "  {} {}", r.name, r.explanation)?;
+    }
+    if !rep.skipped.is_empty() {
+        writeln!(out, "\nNot ranked:")?;
+        for s in &rep.skipped {
+            writeln!(out, "  {}: {}", s.name, s.reason)?;
+        }
+    }
+    Ok(())
+}
+
+fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+/// Write the ranking as CSV, one row per ranked variant.
+pub fn write_csv(out: &mut impl Write, rep: &Report) -> std::io::Result<()> {
+    writeln!(
+        out,
+        "rank,variant,score,annual_l_m2,worst_month_l_m2_day,cost_per_l,capital_per_l_day,\
+         complexity_points,currency,pareto,not_local,explanation"
+    )?;
+    for r in &rep.ranking {
+        let v = &r.values;
+        writeln!(
+            out,
+            "{},{},{},{},{},{},{},{},{},{},{},{}",
+            r.rank,
+            csv_field(&r.name),
+            r.score,
+            v.annual_l_m2,
+            v.worst_month_l_m2_day,
+            v.cost_per_l,
+            v.capital_per_l_day,
+            v.complexity_points,
+            csv_field(&rep.currency),
+            r.pareto,
+            csv_field(&r.not_local.join(";")),
+            csv_field(&r.explanation)
+        )?;
+    }
+    Ok(())
+}
