@@ -222,7 +222,7 @@ fn the_cooler_shaded_face_condenses_more() {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 250, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig { cases: 1000, ..ProptestConfig::default() })]
 
     /// Random valid designs, a day each: the energy closes to 0.1 % (DESIGN.md), no NaN,
     /// no negative yield, yield below the single-effect ceiling (REFERENCES.md §8).

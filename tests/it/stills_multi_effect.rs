@@ -371,7 +371,7 @@ fn the_glazing_gap_is_a_validated_design_field() {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 250, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig { cases: 1000, ..ProptestConfig::default() })]
 
     #[test]
     fn random_multi_effect_designs_close_their_energy_balance(

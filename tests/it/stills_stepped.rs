@@ -171,7 +171,7 @@ fn more_trays_under_the_same_cover_give_a_smaller_gap_and_more_evaporating_area(
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 250, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig { cases: 1000, ..ProptestConfig::default() })]
 
     /// Random valid designs, a day each: the energy closes to 0.1 % (DESIGN.md), no NaN,
     /// no negative yield, yield below the single-effect ceiling (REFERENCES.md §8).

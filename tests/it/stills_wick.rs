@@ -144,7 +144,7 @@ fn sunny_month_yield_lies_in_the_published_wick_range() {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 400, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig { cases: 1000, ..ProptestConfig::default() })]
 
     #[test]
     fn random_wick_designs_close_their_energy_balance(
