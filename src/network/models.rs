@@ -7,7 +7,9 @@
 
 use std::fmt::Debug;
 
-use crate::physics::heat_transfer::{EnclosureAir, InternalCorrelation, enclosure_transfer};
+use crate::physics::heat_transfer::{
+    EnclosureAir, EnclosureTransfer, InternalCorrelation, enclosure_transfer,
+};
 use crate::physics::{seawater, water};
 
 /// A heat flow between the two ends of a link and its partial derivatives.
@@ -76,25 +78,9 @@ impl ConductanceModel for PowerLawConductance {
 }
 
 /// Heat and evaporation fluxes across a humid enclosure, per unit of evaporating area, with
-/// their total derivatives with respect to the two surface temperatures.
-///
-/// The field names follow `physics::heat_transfer::EnclosureTransfer` so that the internal
-/// correlations plug in directly.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct EnclosureFlux {
-    /// Convective heat flux from the hot (evaporating) to the cold (condensing) surface [W m⁻²].
-    pub q_convective_w_m2: f64,
-    /// Evaporative heat flux, i.e. mass flux × latent heat [W m⁻²].
-    pub q_evaporative_w_m2: f64,
-    /// d q_convective / d T_hot [W m⁻² K⁻¹] (including the vapour-pressure slope).
-    pub dq_convective_dt_hot: f64,
-    /// d q_convective / d T_cold [W m⁻² K⁻¹].
-    pub dq_convective_dt_cold: f64,
-    /// d q_evaporative / d T_hot [W m⁻² K⁻¹].
-    pub dq_evaporative_dt_hot: f64,
-    /// d q_evaporative / d T_cold [W m⁻² K⁻¹].
-    pub dq_evaporative_dt_cold: f64,
-}
+/// their total derivatives with respect to the two surface temperatures: the physics
+/// module's [`EnclosureTransfer`], so that every internal correlation plugs in directly.
+pub type EnclosureFlux = EnclosureTransfer;
 
 /// The internal heat and mass transfer between an evaporating surface (brine, wick) and a
 /// condensing surface (cover, stage plate).
@@ -157,6 +143,7 @@ impl EnclosureModel for FixedCoefficientEnclosure {
         let h = self.h_convective_w_m2_k;
         let he = h * self.lewis_factor_k_pa;
         EnclosureFlux {
+            h_convective_w_m2_k: h,
             q_convective_w_m2: h * (t_hot_k - t_cold_k),
             q_evaporative_w_m2: he * (p_hot_pa - p_cold_pa),
             dq_convective_dt_hot: h,
@@ -331,7 +318,7 @@ impl EnclosureModel for CorrelationEnclosure {
         p_cold_pa: f64,
         dp_cold_dt_pa_k: f64,
     ) -> EnclosureFlux {
-        let t = enclosure_transfer(
+        enclosure_transfer(
             &self.correlation,
             t_hot_k,
             t_cold_k,
@@ -340,15 +327,7 @@ impl EnclosureModel for CorrelationEnclosure {
             p_cold_pa,
             dp_cold_dt_pa_k,
             &self.air,
-        );
-        EnclosureFlux {
-            q_convective_w_m2: t.q_convective_w_m2,
-            q_evaporative_w_m2: t.q_evaporative_w_m2,
-            dq_convective_dt_hot: t.dq_convective_dt_hot,
-            dq_convective_dt_cold: t.dq_convective_dt_cold,
-            dq_evaporative_dt_hot: t.dq_evaporative_dt_hot,
-            dq_evaporative_dt_cold: t.dq_evaporative_dt_cold,
-        }
+        )
     }
 }
 

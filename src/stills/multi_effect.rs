@@ -130,6 +130,7 @@ impl EnclosureModel for DiffusionGap {
         let dhfg = water::latent_heat_derivative_j_kg_k(t_hot_k);
         let h = self.conductivity_w_m_k / self.gap_m.max(1e-6);
         EnclosureFlux {
+            h_convective_w_m2_k: h,
             q_convective_w_m2: h * (t_hot_k - t_cold_k),
             q_evaporative_w_m2: m * hfg,
             dq_convective_dt_hot: h,
