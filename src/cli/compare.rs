@@ -159,7 +159,10 @@ pub fn run(args: &CompareArgs) -> anyhow::Result<()> {
     let rep = report(&loaded.design.project.title, &ev, &weights, &scales)?;
     let mut out = std::io::stdout().lock();
     match args.format {
-        Format::Text => write_text(&mut out, &rep)?,
+        Format::Text => {
+            write_text(&mut out, &rep)?;
+            stillbench::cautions::write_cautions(&mut out)?;
+        }
         Format::Json => {
             serde_json::to_writer_pretty(&mut out, &rep).context("writing JSON")?;
             writeln!(out)?;

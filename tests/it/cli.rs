@@ -113,6 +113,7 @@ fn text_results_carry_the_safety_cautions() {
         vec!["simulate", "--variant", "glass-basin"],
         vec!["cost", "--variant", "glass-basin"],
         vec!["operate", "--variant", "glass-basin"],
+        vec!["compare"],
     ] {
         let out = stillbench().args(&cmd).output().unwrap();
         assert!(out.status.success(), "{cmd:?}: {out:?}");
