@@ -127,6 +127,18 @@ pub fn run(args: &SimulateArgs) -> anyhow::Result<()> {
         }
         .into());
     }
+    for r in &results {
+        for m in r.months.iter().filter(|m| m.max_brine_c < 0.0) {
+            // Ice is not modelled: a month whose brine never rises above 0 °C is outside what
+            // the model represents, and a frozen basin can crack.
+            eprintln!(
+                "warning: variant `{}`, month {}: the brine stays below 0 °C all day; freezing \
+                 is not modelled, so treat this month's yield as unreliable and protect the \
+                 still from frost (drain it or insulate it)",
+                r.name, m.month
+            );
+        }
+    }
     let title = loaded.design.project.title.as_str();
     let mut buf = Vec::new();
     match args.format {
