@@ -5,11 +5,6 @@ use super::build::{Network, NetworkError};
 use super::solver::{FailReason, Solver, SolverSettings, StepEvent, StepOutcome, StepRecord};
 use super::state::{Inputs, State};
 
-/// Share of [`StepControl::max_change_k`] the first step of an interval aims at, from
-/// [`Solver::step_for_change_s`]'s estimate (which leaves out the coupling between nodes, so
-/// it aims a little below the limit).
-const PREDICTOR_SHARE: f64 = 0.8;
-
 /// Step-size control of [`Simulation::advance`].
 ///
 /// The accuracy setting is `max_change_k`: a step is repeated at half length when any node
@@ -238,15 +233,6 @@ impl<'n> Simulation<'n> {
         };
         let mut remaining = interval_s;
         let mut dt = self.next_dt_s.clamp(c.min_step_s, c.max_step_s);
-        // The inputs may have jumped since the last step: start no longer than the step over
-        // which the nodes are expected to change by PREDICTOR_SHARE of the allowed change,
-        // instead of trying the old length and repeating it shorter.
-        if let Ok(h) =
-            self.solver
-                .step_for_change_s(&self.state, inputs, PREDICTOR_SHARE * c.max_change_k)
-        {
-            dt = dt.min(h).max(c.min_step_s);
-        }
         // Round-off in `remaining` must not leave a sliver step.
         let sliver = 1e-9 * interval_s;
         while remaining > sliver {

@@ -595,66 +595,6 @@ impl<'n> Solver<'n> {
         }
     }
 
-    /// The longest step [s] over which no node that stores heat is expected to change by
-    /// more than `max_change_k` [K] under `inputs`, from one evaluation of the balances at
-    /// the state's temperatures (∞ when no node is expected to reach it).
-    ///
-    /// The estimate is one implicit-Euler step of each node on its own: with R_i the steady
-    /// residual at the start (minus the net heat gain), J_ii its slope and C_i the node's
-    /// heat capacity (fixed capacity plus water mass × c_p), the change over h is
-    /// ΔT_i = −R_i h / (C_i + h J_ii), so |ΔT_i| ≤ max_change_k for
-    /// h ≤ max_change_k C_i / (|R_i| − max_change_k J_ii) (any h when the denominator is
-    /// ≤ 0). Coupling between nodes is left out, so a step controller still checks the
-    /// actual change; this only spares it most of the steps it would reject after a jump
-    /// of the inputs.
-    pub fn step_for_change_s(
-        &mut self,
-        state: &State,
-        inputs: &Inputs,
-        max_change_k: f64,
-    ) -> Result<f64, FailReason> {
-        if !(max_change_k.is_finite() && max_change_k > 0.0) {
-            return Err(FailReason::InvalidInput {
-                what: "the largest change must be a positive, finite temperature",
-            });
-        }
-        self.prepare(state, inputs, f64::INFINITY)?;
-        let net = self.net;
-        let ws = &mut self.ws;
-        assemble(
-            net,
-            &self.consts,
-            inputs,
-            0.0,
-            &state.t_k,
-            &mut ws.r,
-            &mut ws.scale,
-            &mut ws.jac,
-            &mut ws.flows,
-        );
-        let water = net.water.as_ref();
-        let mut h_s = f64::INFINITY;
-        for (i, node) in net.nodes.iter().enumerate() {
-            let m0 = self.consts.m0[i];
-            let mut cap = node.capacity_j_k;
-            if m0 > 0.0 {
-                cap += m0 * water.liquid_heat_capacity_j_kg_k(state.t_k[i]);
-            }
-            if cap <= 0.0 {
-                continue;
-            }
-            let r = ws.r[i];
-            if !r.is_finite() {
-                return Err(FailReason::NonFinite { iteration: 0 });
-            }
-            let den = r.abs() - max_change_k * ws.jac[(i, i)];
-            if den > 0.0 {
-                h_s = h_s.min(max_change_k * cap / den);
-            }
-        }
-        Ok(h_s)
-    }
-
     /// Brine and salt of water node `i` at the end of a converged step [kg]: evaporation
     /// takes pure water, feed brings salt at the feed salinity, the drain takes it at the
     /// salinity of the step's start (the record's salt flows).
