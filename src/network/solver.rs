@@ -286,6 +286,25 @@ struct StepConsts {
     inflow: Vec<f64>,
     wet: Vec<bool>,
     p_ratio: Vec<f64>,
+    /// Liquid enthalpy at the step's start temperature (water nodes) [J kg⁻¹].
+    h0: Vec<f64>,
+    /// Liquid enthalpy of the feed (water nodes with a feed) [J kg⁻¹].
+    h_feed: Vec<f64>,
+}
+
+/// The latest converged finite step, for the Newton start of the step that continues it.
+#[derive(Debug, Clone)]
+struct PreviousStep {
+    /// A converged step has been recorded.
+    valid: bool,
+    /// Simulated time at the step's end [s].
+    end_time_s: f64,
+    /// Its length [s].
+    dt_s: f64,
+    /// Node temperatures at its end [K].
+    end_t_k: Vec<f64>,
+    /// Node temperature changes over it [K].
+    change_k: Vec<f64>,
 }
 
 /// Newton scratch space.
@@ -301,6 +320,10 @@ struct Scratch {
     jac: DMatrix<f64>,
     jac_trial: DMatrix<f64>,
     lu: DMatrix<f64>,
+    /// Enclosure flows per link at `t` (zero for other links), kept for the step's record.
+    flows: Vec<EnclosureFlows>,
+    /// The same at `t_trial`.
+    flows_trial: Vec<EnclosureFlows>,
 }
 
 /// The network solver. Holds scratch space sized for one network, so a step allocates
@@ -311,6 +334,7 @@ pub struct Solver<'n> {
     settings: SolverSettings,
     consts: StepConsts,
     ws: Scratch,
+    previous: PreviousStep,
 }
 
 impl<'n> Solver<'n> {
@@ -327,6 +351,15 @@ impl<'n> Solver<'n> {
                 inflow: vec![0.0; n],
                 wet: vec![false; n],
                 p_ratio: vec![1.0; n],
+                h0: vec![0.0; n],
+                h_feed: vec![0.0; n],
+            },
+            previous: PreviousStep {
+                valid: false,
+                end_time_s: 0.0,
+                dt_s: 0.0,
+                end_t_k: vec![0.0; n],
+                change_k: vec![0.0; n],
             },
             ws: Scratch {
                 t: vec![0.0; n],
@@ -339,6 +372,8 @@ impl<'n> Solver<'n> {
                 jac: DMatrix::zeros(n, n),
                 jac_trial: DMatrix::zeros(n, n),
                 lu: DMatrix::zeros(n, n),
+                flows: vec![EnclosureFlows::default(); net.links.len()],
+                flows_trial: vec![EnclosureFlows::default(); net.links.len()],
             },
         })
     }
@@ -391,6 +426,14 @@ impl<'n> Solver<'n> {
             ws.p_ratio[i] = net
                 .water
                 .vapour_pressure_ratio(salinity(m, state.salt_kg[i]));
+            if node.holds_water {
+                ws.h0[i] = net.water.liquid_enthalpy_j_kg(state.t_k[i]);
+                ws.h_feed[i] = if inputs.feed_kg_s[i] > 0.0 {
+                    net.water.liquid_enthalpy_j_kg(inputs.feed_t_k[i])
+                } else {
+                    0.0
+                };
+            }
         }
         Ok(if dt_s.is_finite() { 1.0 / dt_s } else { 0.0 })
     }
@@ -417,6 +460,7 @@ impl<'n> Solver<'n> {
         }
         let inv_dt = self.prepare(state, inputs, dt_s)?;
         let mut scale = vec![0.0; n];
+        jacobian.fill(0.0);
         assemble(
             self.net,
             &self.consts,
@@ -426,6 +470,7 @@ impl<'n> Solver<'n> {
             residual_w,
             &mut scale,
             jacobian,
+            &mut self.ws.flows_trial,
         );
         Ok(())
     }
@@ -444,6 +489,7 @@ impl<'n> Solver<'n> {
             Ok(v) => v,
             Err(reason) => return StepOutcome::Failed { reason },
         };
+        self.newton_start(state, dt_s);
         let iterations = match self.newton(inputs, inv_dt) {
             Ok(k) => k,
             Err(reason) => return StepOutcome::Failed { reason },
@@ -454,7 +500,7 @@ impl<'n> Solver<'n> {
         if record.links.len() != net.links.len() || record.nodes.len() != n {
             *record = StepRecord::new(net);
         }
-        fill_record(net, &self.consts, &self.ws.t, inputs, record);
+        fill_record(net, &self.ws.flows, &self.ws.t, inputs, record);
         record.dt_s = dt_s;
         net_inflows_kg_s(net, record, &mut self.consts.inflow);
         for (i, nr) in record.nodes.iter_mut().enumerate() {
@@ -518,7 +564,44 @@ impl<'n> Solver<'n> {
         }
         state.t_k.copy_from_slice(&self.ws.t);
         record.stored_change_j = net.stored_energy_j(state) - energy_before_j;
+        let prev = &mut self.previous;
+        prev.valid = dt_s.is_finite();
+        prev.end_time_s = state.time_s;
+        prev.dt_s = dt_s;
+        prev.end_t_k.copy_from_slice(&state.t_k);
+        for ((d, t1), t0) in prev
+            .change_k
+            .iter_mut()
+            .zip(&state.t_k)
+            .zip(&self.consts.t0)
+        {
+            *d = t1 - t0;
+        }
         StepOutcome::Converged { iterations }
+    }
+
+    /// Newton's starting temperatures (in the scratch vector, which `prepare` set to the
+    /// state's). When this step continues the last converged one — the state is exactly
+    /// where that step ended — start from the straight-line extrapolation of that step's
+    /// change, scaled to this step's length (at most twice); otherwise from the state. Only
+    /// the start moves: the converged temperatures still meet the same tolerance.
+    fn newton_start(&mut self, state: &State, dt_s: f64) {
+        let prev = &self.previous;
+        if !(prev.valid && dt_s.is_finite())
+            || state.time_s.to_bits() != prev.end_time_s.to_bits()
+            || state
+                .t_k
+                .iter()
+                .zip(&prev.end_t_k)
+                .any(|(a, b)| a.to_bits() != b.to_bits())
+        {
+            return;
+        }
+        let ratio = (dt_s / prev.dt_s).min(2.0);
+        let (lo, hi) = TEMPERATURE_RANGE_K;
+        for ((t, t0), d) in self.ws.t.iter_mut().zip(&state.t_k).zip(&prev.change_k) {
+            *t = (t0 + ratio * d).clamp(lo, hi);
+        }
     }
 
     /// Brine and salt of water node `i` at the end of a converged step [kg]: evaporation
@@ -554,6 +637,7 @@ impl<'n> Solver<'n> {
             &mut ws.r,
             &mut ws.scale,
             &mut ws.jac,
+            &mut ws.flows,
         );
         let mut k: u32 = 0;
         loop {
@@ -576,7 +660,7 @@ impl<'n> Solver<'n> {
             }
             k += 1;
             // Solve J·dx = −r in the band of the Jacobian.
-            ws.lu.copy_from(&ws.jac);
+            copy_band(&ws.jac, &mut ws.lu, net.bandwidth);
             for (d, r) in ws.dx.iter_mut().zip(&ws.r) {
                 *d = -r;
             }
@@ -610,6 +694,7 @@ impl<'n> Solver<'n> {
                         &mut ws.r_trial,
                         &mut ws.scale_trial,
                         &mut ws.jac_trial,
+                        &mut ws.flows_trial,
                     );
                     let norm1 = norm2(&ws.r_trial);
                     // Armijo-like sufficient decrease on the 2-norm of the residual.
@@ -618,6 +703,7 @@ impl<'n> Solver<'n> {
                         std::mem::swap(&mut ws.r, &mut ws.r_trial);
                         std::mem::swap(&mut ws.scale, &mut ws.scale_trial);
                         std::mem::swap(&mut ws.jac, &mut ws.jac_trial);
+                        std::mem::swap(&mut ws.flows, &mut ws.flows_trial);
                         accepted = true;
                         break;
                     }
@@ -642,6 +728,40 @@ fn norm2(v: &[f64]) -> f64 {
     v.iter().map(|x| x * x).sum::<f64>().sqrt()
 }
 
+/// Set the band of half-width `kl` of `jac` to zero. Every link joins nodes at most `kl`
+/// apart ([`Network::bandwidth`]), so entries outside the band are never written and stay
+/// zero from the matrix's creation; clearing only the band saves the work of a full fill.
+fn zero_band(jac: &mut DMatrix<f64>, kl: usize) {
+    let n = jac.nrows();
+    if kl + 1 >= n {
+        jac.fill(0.0);
+        return;
+    }
+    for j in 0..n {
+        let lo = j.saturating_sub(kl);
+        let hi = (j + kl).min(n.saturating_sub(1));
+        jac.column_mut(j).rows_range_mut(lo..=hi).fill(0.0);
+    }
+}
+
+/// Copy the part of `jac` that banded elimination with pivoting reads and writes into `lu`:
+/// per column j rows j − 2·kl … j + kl (the upper band widens to 2·kl under pivoting).
+/// Outside that region `lu` is never written, so it stays zero from its creation.
+fn copy_band(jac: &DMatrix<f64>, lu: &mut DMatrix<f64>, kl: usize) {
+    let n = jac.nrows();
+    if kl + 1 >= n {
+        lu.copy_from(jac);
+        return;
+    }
+    for j in 0..n {
+        let lo = j.saturating_sub(2 * kl);
+        let hi = (j + kl).min(n.saturating_sub(1));
+        lu.column_mut(j)
+            .rows_range_mut(lo..=hi)
+            .copy_from(&jac.column(j).rows_range(lo..=hi));
+    }
+}
+
 /// Gaussian elimination with partial pivoting restricted to a band of half-width `kl`
 /// (pivoting widens the upper band to 2·kl). Dense when `kl` ≥ n − 1. Solves in place:
 /// `b` becomes the solution. Returns false when a pivot vanishes.
@@ -650,12 +770,24 @@ fn solve_banded(a: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
     if n == 0 {
         return true;
     }
+    // Largest magnitude in the band (the only non-zero entries); a NaN anywhere fails.
     let mut amax = 0.0_f64;
-    for v in a.iter() {
-        amax = amax.max(v.abs());
+    let mut nan = false;
+    for j in 0..n {
+        let col = a.column(j);
+        for v in col
+            .rows_range(j.saturating_sub(kl)..=(j + kl).min(n - 1))
+            .iter()
+        {
+            let v = v.abs();
+            nan |= v.is_nan();
+            if v > amax {
+                amax = v;
+            }
+        }
     }
     let tiny = amax * 1e-14;
-    if !(amax.is_finite() && amax > 0.0) {
+    if nan || !(amax.is_finite() && amax > 0.0) {
         return false;
     }
     for k in 0..n {
@@ -831,35 +963,45 @@ fn assemble(
     r: &mut [f64],
     scale: &mut [f64],
     jac: &mut DMatrix<f64>,
+    flows: &mut [EnclosureFlows],
 ) {
     let water = net.water.as_ref();
-    jac.fill(0.0);
+    zero_band(jac, net.bandwidth);
     for (i, node) in net.nodes.iter().enumerate() {
         let ti = t[i];
         let mut res = -inputs.source_w[i];
         let mut sc = inputs.source_w[i].abs();
         let mut diag = 0.0;
+        let m0 = c.m0[i];
+        let feed = inputs.feed_kg_s[i];
+        let stores_water = inv_dt > 0.0 && m0 > 0.0;
+        let fed = node.holds_water && feed > 0.0;
+        // h_f and c_p at the trial temperature, evaluated once for storage and feed.
+        let (h1, cp1) = if stores_water || fed {
+            (
+                water.liquid_enthalpy_j_kg(ti),
+                water.liquid_heat_capacity_j_kg_k(ti),
+            )
+        } else {
+            (0.0, 0.0)
+        };
         if inv_dt > 0.0 {
-            let m0 = c.m0[i];
             let mut store = node.capacity_j_k * (ti - c.t0[i]);
             let mut cap = node.capacity_j_k;
             sc += inv_dt * node.capacity_j_k * ti;
-            if m0 > 0.0 {
-                let h1 = water.liquid_enthalpy_j_kg(ti);
-                store += m0 * (h1 - water.liquid_enthalpy_j_kg(c.t0[i]));
-                cap += m0 * water.liquid_heat_capacity_j_kg_k(ti);
+            if stores_water {
+                store += m0 * (h1 - c.h0[i]);
+                cap += m0 * cp1;
                 sc += inv_dt * m0 * h1.abs();
             }
             res += inv_dt * store;
             diag += inv_dt * cap;
         }
-        let feed = inputs.feed_kg_s[i];
-        if node.holds_water && feed > 0.0 {
-            let g = feed
-                * (water.liquid_enthalpy_j_kg(inputs.feed_t_k[i]) - water.liquid_enthalpy_j_kg(ti));
+        if fed {
+            let g = feed * (c.h_feed[i] - h1);
             res -= g;
             sc += g.abs();
-            diag += feed * water.liquid_heat_capacity_j_kg_k(ti);
+            diag += feed * cp1;
         }
         r[i] = res;
         scale[i] = sc;
@@ -896,6 +1038,7 @@ fn assemble(
             jac[(w, cn)] -= f.dgw_dtc;
             jac[(cn, w)] -= f.dgc_dtw;
             jac[(cn, cn)] -= f.dgc_dtc;
+            flows[l] = f;
             continue;
         }
         let ta = end_t(link.a, t, inputs);
@@ -920,34 +1063,25 @@ fn assemble(
     }
 }
 
-/// Fill the record from the converged temperatures `t` — a separate pass over the link
-/// physics, independent of the Newton residual.
-fn fill_record(net: &Network, c: &StepConsts, t: &[f64], inputs: &Inputs, rec: &mut StepRecord) {
+/// Fill the record from the converged temperatures `t`, with the enclosure flows `flows`
+/// that the last assembly computed at exactly these temperatures (so the record books the
+/// very flows whose balance met the tolerance, without evaluating the enclosures again).
+fn fill_record(
+    net: &Network,
+    flows: &[EnclosureFlows],
+    t: &[f64],
+    inputs: &Inputs,
+    rec: &mut StepRecord,
+) {
     let water = net.water.as_ref();
     for (l, link) in net.links.iter().enumerate() {
         let lr = &mut rec.links[l];
         *lr = LinkRecord::default();
-        if let LinkKind::Enclosure {
-            area_m2,
-            model,
-            collected_fraction,
-            leaked_fraction,
-        } = &link.kind
-        {
-            let (End::Node(w), End::Node(cn)) = (link.a, link.b) else {
+        if let LinkKind::Enclosure { .. } = &link.kind {
+            let (End::Node(_), End::Node(_)) = (link.a, link.b) else {
                 continue;
             };
-            let f = enclosure_flows(
-                net,
-                c,
-                w.0,
-                t[w.0],
-                t[cn.0],
-                *area_m2,
-                model.as_ref(),
-                *collected_fraction,
-                *leaked_fraction,
-            );
+            let f = &flows[l];
             let m = f.mdot_kg_s;
             let cond = f.psi * m;
             let leak = m - cond;
