@@ -11,6 +11,7 @@ mod compare;
 mod cost;
 mod operate;
 mod simulate;
+mod sweep;
 
 /// Design, simulate and compare solar water stills for one site and the materials a local
 /// workshop can get.
@@ -47,6 +48,9 @@ enum Command {
     /// Check a claimed yield against the site's sunlight: impossible, implausible or
     /// plausible, with the reasoning.
     Audit(audit::AuditArgs),
+    /// Step one or two numeric fields of a variant over a range and find the value best for
+    /// the year or for the worst month.
+    Sweep(sweep::SweepArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -60,6 +64,7 @@ pub fn main() -> std::process::ExitCode {
         Command::Operate(args) => operate::run(&args),
         Command::Compare(args) => compare::run(&args),
         Command::Audit(args) => audit::run(&args),
+        Command::Sweep(args) => sweep::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),

@@ -1,0 +1,278 @@
+//! `stillbench sweep DESIGN --variant NAME --param FIELD=FROM..TO[:STEP] [--param …]
+//! [--target annual|worst-month] [--format text|json|csv]`: a parametric study of one or two
+//! numeric fields of one variant, and the point best for the target.
+
+use std::io::Write;
+use std::path::PathBuf;
+
+use anyhow::Context;
+use stillbench::compare::sweep::{self, BadSpec, ParamSpec, SweepError, SweepResult, Target};
+use stillbench::design::{DesignErrors, DesignIssue};
+use stillbench::stills::RunOptions;
+
+/// Output formats.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum Format {
+    /// A table of points (and a grid for two fields) and the best point.
+    Text,
+    /// JSON: the axes, every point, the best point and edge notes.
+    Json,
+    /// CSV: one row per point.
+    Csv,
+}
+
+/// The target, as typed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum TargetArg {
+    /// Annual distillate per m² of footprint.
+    Annual,
+    /// Mean daily distillate per m² in the worst month.
+    WorstMonth,
+}
+
+/// Arguments of `sweep`.
+#[derive(Debug, clap::Args)]
+#[command(
+    after_help = "FIELD is a numeric field of the variant as written in the design \
+    file; list positions count from 1, e.g. base_insulation[1].thickness_mm or \
+    operation.band_mm. Without :STEP, 11 equally spaced values. At most 200 points in all.\n\n\
+    Examples:\n  \
+    stillbench sweep designs/demo-highland-south.toml --variant north-basin \
+    --param cover_tilt_deg=10..70:5 --target worst-month\n  \
+    stillbench sweep designs/demo-highland-south.toml --variant north-basin \
+    --param cover_tilt_deg=20..60:10 --param brine_depth_mm=10..50:10 --format csv"
+)]
+pub struct SweepArgs {
+    /// The design file (TOML).
+    pub design: PathBuf,
+    /// The variant to study (its `name`).
+    #[arg(long, value_name = "NAME")]
+    pub variant: String,
+    /// A field and its range, FIELD=FROM..TO[:STEP]; give it twice for a grid.
+    #[arg(long = "param", value_name = "FIELD=FROM..TO[:STEP]", required = true)]
+    pub params: Vec<String>,
+    /// What to maximise.
+    #[arg(long, value_enum, default_value_t = TargetArg::Annual)]
+    pub target: TargetArg,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+}
+
+fn bad_param(file: &std::path::Path, b: &BadSpec) -> anyhow::Error {
+    stillbench::Error::Design(DesignErrors(vec![DesignIssue {
+        file: file.to_path_buf(),
+        line_col: None,
+        path: "--param".into(),
+        message: b.to_string(),
+    }]))
+    .into()
+}
+
+/// Run `sweep`.
+pub fn run(args: &SweepArgs) -> anyhow::Result<()> {
+    let file = &args.design;
+    let whole = |message: String| -> anyhow::Error {
+        stillbench::Error::Design(DesignErrors(vec![DesignIssue {
+            file: file.clone(),
+            line_col: None,
+            path: String::new(),
+            message,
+        }]))
+        .into()
+    };
+    let mut specs = Vec::with_capacity(args.params.len());
+    for p in &args.params {
+        specs.push(p.parse::<ParamSpec>().map_err(|b| bad_param(file, &b))?);
+    }
+    let bytes =
+        std::fs::read(file).map_err(|e| whole(format!("cannot read the design file: {e}")))?;
+    let text = String::from_utf8(bytes)
+        .map_err(|e| whole(format!("the design file is not UTF-8 text: {e}")))?;
+    let base = file.parent().unwrap_or(std::path::Path::new("."));
+    let target = match args.target {
+        TargetArg::Annual => Target::Annual,
+        TargetArg::WorstMonth => Target::WorstMonth,
+    };
+    let res = match sweep::sweep(
+        &text,
+        file,
+        base,
+        &args.variant,
+        &specs,
+        target,
+        &RunOptions::default(),
+    ) {
+        Ok(r) => r,
+        Err(SweepError::Spec(b)) => return Err(bad_param(file, &b)),
+        Err(SweepError::Run(e)) => return Err(e.into()),
+    };
+    let mut out = std::io::stdout().lock();
+    match args.format {
+        Format::Text => write_text(&mut out, &res)?,
+        Format::Json => {
+            serde_json::to_writer_pretty(&mut out, &res).context("writing JSON")?;
+            writeln!(out)?;
+        }
+        Format::Csv => write_csv(&mut out, &res)?,
+    }
+    if res.best.is_none() {
+        let reason = res
+            .points
+            .iter()
+            .find_map(|p| p.failed.clone())
+            .unwrap_or_default();
+        return Err(stillbench::Error::Model {
+            variant: res.variant.clone(),
+            at: String::new(),
+            reason: format!("no sweep point could be simulated trustworthily: {reason}"),
+        }
+        .into());
+    }
+    Ok(())
+}
+
+fn fmt_opt(x: Option<f64>, width: usize, decimals: usize) -> String {
+    x.map_or_else(
+        || format!("{:>width$}", "–"),
+        |v| format!("{v:>width$.decimals$}"),
+    )
+}
+
+/// Write the sweep as text.
+pub fn write_text(out: &mut impl Write, res: &SweepResult) -> std::io::Result<()> {
+    writeln!(
+        out,
+        "sweep of `{}`, maximising {}\n",
+        res.variant,
+        res.target.label()
+    )?;
+    let mut head = String::new();
+    for a in &res.axes {
+        head.push_str(&format!("{:>w$}  ", a.field, w = a.field.len().max(8)));
+    }
+    writeln!(
+        out,
+        "{head}{:>10}  {:>14}  {:>11}  best  note",
+        "L/m²/year", "worst L/m²/day", "worst month"
+    )?;
+    for (i, p) in res.points.iter().enumerate() {
+        let mut row = String::new();
+        for (a, x) in res.axes.iter().zip(&p.values) {
+            row.push_str(&format!("{x:>w$}  ", w = a.field.len().max(8)));
+        }
+        writeln!(
+            out,
+            "{row}{}  {}  {:>11}  {:<4}  {}",
+            fmt_opt(p.annual_l_m2, 10, 0),
+            fmt_opt(p.worst_month_l_m2_day, 14, 3),
+            p.worst_month.map_or_else(|| "–".into(), |m| m.to_string()),
+            if res.best == Some(i) { "*" } else { "" },
+            p.failed
+                .as_deref()
+                .map_or_else(String::new, |f| format!("not simulated: {f}"))
+        )?;
+    }
+    if let [a, b] = res.axes.as_slice() {
+        writeln!(
+            out,
+            "\n{} by {} (rows) and {} (columns):",
+            res.target.label(),
+            a.field,
+            b.field
+        )?;
+        let mut line = format!("{:>12}", "");
+        for y in &b.values {
+            line.push_str(&format!("  {y:>9}"));
+        }
+        writeln!(out, "{line}")?;
+        for (r, x) in a.values.iter().enumerate() {
+            let mut line = format!("{x:>12}");
+            for c in 0..b.values.len() {
+                let v = res
+                    .points
+                    .get(r * b.values.len() + c)
+                    .and_then(|p| p.target_value(res.target));
+                let d = if res.target == Target::Annual { 0 } else { 3 };
+                line.push_str(&format!("  {}", fmt_opt(v, 9, d)));
+            }
+            writeln!(out, "{line}")?;
+        }
+    }
+    writeln!(out)?;
+    match res.best.and_then(|b| res.points.get(b)) {
+        Some(p) => {
+            let at: Vec<String> = res
+                .axes
+                .iter()
+                .zip(&p.values)
+                .map(|(a, x)| format!("{} = {x}", a.field))
+                .collect();
+            writeln!(
+                out,
+                "best for {}: {} — {:.0} L/m²/year, worst month {:.3} L/m²/day (month {})",
+                res.target.label(),
+                at.join(", "),
+                p.annual_l_m2.unwrap_or(f64::NAN),
+                p.worst_month_l_m2_day.unwrap_or(f64::NAN),
+                p.worst_month.unwrap_or(0)
+            )?;
+            for e in &res.edges {
+                writeln!(
+                    out,
+                    "note: the best point is at the {} end of the {} range ({}); the optimum \
+                     may lie beyond it — widen the range",
+                    e.end, e.field, e.value
+                )?;
+            }
+        }
+        None => writeln!(out, "no point could be simulated trustworthily")?,
+    }
+    let failed = res.points.iter().filter(|p| p.failed.is_some()).count();
+    if failed > 0 {
+        writeln!(
+            out,
+            "{failed} of {} points not simulated (see the notes above)",
+            res.points.len()
+        )?;
+    }
+    Ok(())
+}
+
+fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+fn csv_opt<T: ToString>(x: Option<T>) -> String {
+    x.map_or_else(String::new, |v| v.to_string())
+}
+
+/// Write the sweep as CSV, one row per point.
+pub fn write_csv(out: &mut impl Write, res: &SweepResult) -> std::io::Result<()> {
+    let mut head: Vec<String> = res.axes.iter().map(|a| csv_field(&a.field)).collect();
+    head.extend(
+        [
+            "annual_l_m2",
+            "worst_month_l_m2_day",
+            "worst_month",
+            "best",
+            "failed",
+        ]
+        .map(String::from),
+    );
+    writeln!(out, "{}", head.join(","))?;
+    for (i, p) in res.points.iter().enumerate() {
+        let mut row: Vec<String> = p.values.iter().map(f64::to_string).collect();
+        row.push(csv_opt(p.annual_l_m2));
+        row.push(csv_opt(p.worst_month_l_m2_day));
+        row.push(csv_opt(p.worst_month));
+        row.push((res.best == Some(i)).to_string());
+        row.push(csv_field(p.failed.as_deref().unwrap_or("")));
+        writeln!(out, "{}", row.join(","))?;
+    }
+    Ok(())
+}
