@@ -17,12 +17,24 @@ mod sweep;
 /// workshop can get.
 ///
 /// A design file (TOML) describes the site and its climate, the local materials and prices,
-/// and one or more still variants. Start with `stillbench check designs/demo-coast.toml`.
+/// and one or more still variants (docs/design-file.md).
 ///
 /// Exit codes: 0 success; 2 bad input (file, field or value — the message names them);
 /// 3 the model could not give a trustworthy result for a valid design; 1 internal error.
 #[derive(Debug, Parser)]
-#[command(name = "stillbench", version, about, long_about)]
+#[command(
+    name = "stillbench",
+    version,
+    about,
+    long_about,
+    after_help = "A typical session:
+  stillbench check designs/demo-coast.toml     is the file right? what does it describe?
+  stillbench climate designs/demo-coast.toml   the sunlight and temperatures behind the yield
+  stillbench compare designs/demo-coast.toml   which variant to build, and why
+  stillbench cost designs/demo-coast.toml --variant glass-basin
+                                               what to buy, cut and build, and what it costs
+  stillbench operate designs/demo-coast.toml   how to feed and flush it"
+)]
 pub struct Cli {
     #[command(subcommand)]
     command: Command,
