@@ -11,6 +11,7 @@ mod compare;
 mod cost;
 mod operate;
 mod simulate;
+mod size;
 
 /// Design, simulate and compare solar water stills for one site and the materials a local
 /// workshop can get.
@@ -47,6 +48,9 @@ enum Command {
     /// Check a claimed yield against the site's sunlight: impossible, implausible or
     /// plausible, with the reasoning.
     Audit(audit::AuditArgs),
+    /// How many units of each variant meet a daily demand in the worst month, in most
+    /// stochastic weather years; capital, land, storage, and rain the covers would catch.
+    Size(size::SizeArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -60,6 +64,7 @@ pub fn main() -> std::process::ExitCode {
         Command::Operate(args) => operate::run(&args),
         Command::Compare(args) => compare::run(&args),
         Command::Audit(args) => audit::run(&args),
+        Command::Size(args) => size::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),

@@ -15,6 +15,7 @@
 pub mod audit;
 pub mod evaluate;
 pub mod rank;
+pub mod size;
 
 pub use audit::{Audit, AuditError, Claim, ClaimField, Verdict, audit};
 pub use evaluate::{DesignEvaluation, Evaluation, Skipped, evaluate_design, evaluate_variant};
