@@ -234,6 +234,15 @@ fn one_seed_gives_one_answer() {
         serde_json::to_string(&a).unwrap(),
         serde_json::to_string(&b).unwrap()
     );
+    // The same years on one thread and on two (rayon pools): bit-identical.
+    let on = |threads: usize| {
+        rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .unwrap()
+            .install(|| years_of(&loaded, 3, 2))
+    };
+    assert_eq!(on(1), on(2));
     let y3 = years_of(&loaded, 3, 1);
     let y4 = years_of(&loaded, 4, 1);
     assert_ne!(y3[0].daily_l, y4[0].daily_l);
