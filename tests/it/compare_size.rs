@@ -212,6 +212,8 @@ fn the_sized_array_meets_fresh_years() {
     let s = size::size_from_years(&loaded, 0, &sizing, &opts(100.0, c, n, 11))
         .unwrap()
         .unwrap();
+    // The size is the smallest that works: one unit fewer misses the confidence in-sample.
+    assert!(size::met_fraction(&sizing, s.units - 1, 100.0) < c);
     let fresh = years_of(&loaded, 12, n);
     let met = size::met_fraction(&fresh, s.units, 100.0);
     let allowance = 2.0 * (2.0 * c * (1.0 - c) / f64::from(n)).sqrt();
@@ -299,4 +301,73 @@ fn no_demand_anywhere_exits_2_naming_demand() {
     assert_eq!(out.status.code(), Some(2));
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("--demand"), "{err}");
+}
+
+/// The demo coast design with only its first (single-slope) variant, written to a temporary
+/// directory with the materials path made absolute.
+fn one_variant_design(dir: &std::path::Path) -> std::path::PathBuf {
+    let text = std::fs::read_to_string(demo_path()).unwrap();
+    let first = text.find("[[variant]]").unwrap();
+    let second = text[first + 1..].find("[[variant]]").unwrap() + first + 1;
+    let materials = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("designs/materials");
+    let one = text[..second].replace(
+        "materials = \"materials/",
+        &format!("materials = \"{}/", materials.display()),
+    );
+    let path = dir.join("one.toml");
+    std::fs::write(&path, one).unwrap();
+    path
+}
+
+#[test]
+fn size_command_json_and_csv() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = one_variant_design(dir.path());
+    let out = cli()
+        .args(["size", "--people", "20", "--litres-per-person", "6"])
+        .args(["--years", "2", "--confidence", "0.5", "--format", "json"])
+        .arg(&path)
+        .output()
+        .unwrap();
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    // 20 people × 6 L (arithmetic).
+    assert!((v["options"]["demand_l_day"].as_f64().unwrap() - 120.0).abs() < 1e-12);
+    let s = &v["sized"][0];
+    assert_eq!(s["name"], "glass-basin");
+    assert!(s["units"].as_u64().unwrap() >= 1);
+    assert!(s["array_worst_month_l_day"].as_f64().unwrap() >= 120.0);
+    // Rain sits in its own array, 12 months, apart from the distillate figures.
+    assert_eq!(s["rain"].as_array().unwrap().len(), 12);
+    let csv = cli()
+        .args([
+            "size",
+            "--demand",
+            "120",
+            "--years",
+            "2",
+            "--confidence",
+            "0.5",
+        ])
+        .args(["--format", "csv"])
+        .arg(&path)
+        .output()
+        .unwrap();
+    assert_eq!(csv.status.code(), Some(0));
+    let text = String::from_utf8(csv.stdout).unwrap();
+    let lines: Vec<&str> = text.lines().collect();
+    assert_eq!(lines.len(), 2, "{text}");
+    assert!(lines[0].starts_with("variant,kind,demand_l_day"));
+    assert!(!lines[0].contains("rain"));
+    // Same seed, same demand: the CSV row carries the units the JSON gave.
+    let units_col = lines[0].split(',').position(|c| c == "units").unwrap();
+    assert_eq!(
+        lines[1].split(',').nth(units_col).unwrap(),
+        s["units"].as_u64().unwrap().to_string()
+    );
 }
