@@ -141,6 +141,27 @@ fn sizing_the_demo_single_slope() {
         assert!(y.daily_l.iter().all(|d| d.is_finite() && *d >= 0.0));
     }
 
+    // The daily outputs summed from the hour-by-hour records agree with the simulation's own
+    // monthly means for the same year (internal consistency, relative 1e-9).
+    let model = size::weather_model(&loaded).unwrap();
+    let base = stills::site_weather(&loaded).unwrap();
+    let weather = stills::SiteWeather {
+        series: model.year(7, 0),
+        average_days: false,
+        ..base
+    };
+    let v = &loaded.design.variants[0];
+    let r = stills::simulate_variant(&loaded, v, &weather, &RunOptions::default()).unwrap();
+    for (m, month) in r.months.iter().enumerate() {
+        let ours = years[0].month_mean_l_day[m];
+        assert!(
+            (ours - month.l_day).abs() <= 1e-9 * month.l_day.abs().max(1.0),
+            "month {}: {ours} vs {}",
+            m + 1,
+            month.l_day
+        );
+    }
+
     // More demand never needs fewer units (issue 8), nor a smaller tank or less land.
     let mut last: Option<size::VariantSize> = None;
     for demand in [5.0, 20.0, 50.0, 100.0, 137.0, 200.0, 400.0, 750.0] {
