@@ -58,6 +58,9 @@ pub const DEFAULT_YEARS: u32 = 20;
 /// Default confidence: the fraction of years in which the demand must be met.
 pub const DEFAULT_CONFIDENCE: f64 = 0.9;
 
+/// Most stochastic years accepted (each is a full hourly simulation of every variant).
+pub const MAX_YEARS: u32 = 1000;
+
 /// What to size for.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct SizeOptions {
@@ -65,7 +68,7 @@ pub struct SizeOptions {
     pub demand_l_day: f64,
     /// Fraction of years in which the demand must be met [-], in (0, 1).
     pub confidence: f64,
-    /// Stochastic weather years, ≥ 1.
+    /// Stochastic weather years, 1…[`MAX_YEARS`].
     pub years: u32,
     /// Seed of the weather generator.
     pub seed: u64,
@@ -92,8 +95,11 @@ impl SizeOptions {
                 ),
             ));
         }
-        if self.years == 0 {
-            return Err(("--years".into(), "at least one year is needed".into()));
+        if self.years == 0 || self.years > MAX_YEARS {
+            return Err((
+                "--years".into(),
+                format!("between 1 and {MAX_YEARS} years, got {}", self.years),
+            ));
         }
         Ok(())
     }

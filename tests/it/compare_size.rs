@@ -291,6 +291,8 @@ fn bad_size_options_exit_2_naming_the_option() {
         ),
         (vec!["--demand", "10", "--confidence", "0"], "--confidence"),
         (vec!["--people", "0"], "--people"),
+        (vec!["--demand", "10", "--years", "0"], "--years"),
+        (vec!["--demand", "10", "--years", "1001"], "--years"),
         (
             vec!["--people", "10", "--litres-per-person", "-1"],
             "--litres-per-person",
