@@ -11,6 +11,7 @@ mod compare;
 mod cost;
 mod operate;
 mod simulate;
+mod size;
 mod sweep;
 
 /// Design, simulate and compare solar water stills for one site and the materials a local
@@ -63,6 +64,9 @@ enum Command {
     /// Step one or two numeric fields of a variant over a range and find the value best for
     /// the year or for the worst month.
     Sweep(sweep::SweepArgs),
+    /// How many units of each variant meet a daily demand in the worst month, in most
+    /// stochastic weather years; capital, land, storage, and rain the covers would catch.
+    Size(size::SizeArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -77,6 +81,7 @@ pub fn main() -> std::process::ExitCode {
         Command::Compare(args) => compare::run(&args),
         Command::Audit(args) => audit::run(&args),
         Command::Sweep(args) => sweep::run(&args),
+        Command::Size(args) => size::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),

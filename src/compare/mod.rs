@@ -15,6 +15,7 @@
 pub mod audit;
 pub mod evaluate;
 pub mod rank;
+pub mod size;
 pub mod sweep;
 
 pub use audit::{Audit, AuditError, Claim, ClaimField, Verdict, audit};

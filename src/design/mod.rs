@@ -37,7 +37,8 @@ pub use operation::{
 };
 pub use schema::{
     BasinKind, Climate, Columns, DAYS_IN_MONTH, DEFAULT_LITRES_PER_PERSON_DAY, DEFAULT_RH_PERCENT,
-    DEFAULT_SOILING_TRANSMITTANCE, Demand, Design, DoubleSlope, GapFill, HorizonPoint, Humidity,
+    DEFAULT_SOILING_TRANSMITTANCE, DRINKING_AND_COOKING_L_PER_PERSON_DAY,
+    DRINKING_L_PER_PERSON_DAY, Demand, Design, DoubleSlope, GapFill, HorizonPoint, Humidity,
     InternalCorrelation, KIND_NAMES, Layer, LossSwitches, MonthlyClimate, MultiEffect, Period,
     Project, STEPPED_MIN_CLEARANCE_MM, SingleSlope, Sink, Site, Stepped, Variant, VariantKind,
     WeatherFile, WeatherFormat, Wick,

@@ -8,11 +8,18 @@ use std::path::PathBuf;
 
 use serde::{Deserialize, Serialize};
 
-/// Default drinking-and-cooking water per person and day [L].
-///
-/// Notes: 5 L per person per day covers drinking and cooking only (common practice, no
-/// source yet; a citation to a water-supply guideline is to be added when sizing lands).
-pub const DEFAULT_LITRES_PER_PERSON_DAY: f64 = 5.0;
+/// Drinking water per person and day [L]: the upper end of the survival need (drinking and
+/// food) of 2.5–3 L in the Sphere Handbook (2018), water-supply standard 2.1 (from memory).
+pub const DRINKING_L_PER_PERSON_DAY: f64 = 3.0;
+
+/// Drinking plus basic cooking per person and day [L]: 3 L drinking plus the lower end of
+/// the 3–6 L basic cooking need in the Sphere Handbook (2018), water-supply standard 2.1
+/// (from memory).
+pub const DRINKING_AND_COOKING_L_PER_PERSON_DAY: f64 = 6.0;
+
+/// Default water per person and day when a demand gives people but no litres [L]: drinking
+/// only ([`DRINKING_L_PER_PERSON_DAY`]) — what a still is first asked to cover.
+pub const DEFAULT_LITRES_PER_PERSON_DAY: f64 = DRINKING_L_PER_PERSON_DAY;
 
 /// Relative humidity assumed when a monthly climate gives neither `rh_percent` nor
 /// `dew_point_c` [%]. Common practice, no source: a mid-range value for warm sites.

@@ -362,9 +362,11 @@ fn with_a_yield_the_cost_per_litre_follows_the_crf_formula() {
     // cost per litre = annualised / 1000 (REFERENCES.md §9); round-off tolerance.
     assert!((r.cost.levelised_litres.unwrap() - 1000.0).abs() < 1e-6);
     assert!((r.cost.cost_per_litre.unwrap() - r.cost.annualised / 1000.0).abs() < 1e-9);
-    // 5 L per person per day (schema default) × 365 days.
+    // The schema's default litres per person per day (drinking only) × 365 days.
+    let per_person_l_year = design::DEFAULT_LITRES_PER_PERSON_DAY * 365.0;
     assert!(
-        (r.cost.cost_per_person_year.unwrap() - r.cost.cost_per_litre.unwrap() * 1825.0).abs()
+        (r.cost.cost_per_person_year.unwrap() - r.cost.cost_per_litre.unwrap() * per_person_l_year)
+            .abs()
             < 1e-9
     );
     assert!(r.commissioning.text.contains("5.0–7.0 L"));

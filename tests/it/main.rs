@@ -3,6 +3,7 @@
 mod cli;
 mod climate;
 mod compare;
+mod compare_size;
 mod compare_sweep;
 mod design;
 mod economics;

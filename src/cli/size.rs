@@ -1,0 +1,308 @@
+//! `stillbench size [DESIGN] --demand L_PER_DAY | --people N [--litres-per-person L]
+//! [--confidence 0.9] [--years N] [--seed S] [--format text|json|csv]`: how many units of each
+//! variant meet a daily demand in the worst month, in at least the confidence fraction of
+//! stochastic weather years; their capital, land (rows spaced against noon shading), storage
+//! for runs of low-output days, and the rain the covers would catch.
+
+use std::io::Write;
+use std::path::PathBuf;
+
+use anyhow::Context;
+use stillbench::compare::size::{
+    self, DEFAULT_CONFIDENCE, DEFAULT_YEARS, DRINKING_AND_COOKING_L_PER_PERSON_DAY,
+    DRINKING_L_PER_PERSON_DAY, SizeOptions, SizeReport,
+};
+use stillbench::design::{DesignErrors, DesignIssue};
+use stillbench::stills;
+
+/// Output formats.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum Format {
+    /// A readable table per variant, rain apart, and the method.
+    Text,
+    /// JSON: the options and every figure per variant.
+    Json,
+    /// CSV: one row per sized variant (rain not included).
+    Csv,
+}
+
+/// Arguments of `size`.
+#[derive(Debug, clap::Args)]
+#[command(after_help = "Method:\n  \
+    Each variant is simulated hour by hour over --years stochastic weather years (seeded).\n  \
+    Units: in each year, ceil(demand / worst-month mean L/day of one unit); the array is the\n  \
+    ceil(confidence x years)-th smallest, so at least that fraction of years is met.\n  \
+    Land: rows face the equator, spaced so no row shades the next at solar noon on the\n  \
+    worst month's average day: gap = row height / tan(noon sun elevation).\n  \
+    Storage: a low-output day makes less than the demand; the tank carries the deficit that\n  \
+    builds over runs of such days (sequent-peak), taken at the same confidence over years.\n  \
+    Rain caught by the covers is shown apart and never added to the distillate.\n  \
+    The Monte Carlo over uncertain parameters and a fast response model come later.\n\n\
+    Per-person figures (Sphere Handbook 2018, water-supply standard 2.1; from memory):\n  \
+    drinking only 3 L/person/day (the default), drinking and cooking 6 L/person/day.\n\n\
+    Examples:\n  stillbench size designs/demo-coast.toml --demand 200\n  \
+    stillbench size designs/demo-coast.toml --people 120 --litres-per-person 6 --format json")]
+pub struct SizeArgs {
+    /// The design file (TOML). Without it, the built-in demo design.
+    pub design: Option<PathBuf>,
+    /// Daily demand [L/day]. Without it or --people, the design's `[project.demand]`.
+    #[arg(
+        long,
+        value_name = "L_PER_DAY",
+        allow_negative_numbers = true,
+        conflicts_with = "people"
+    )]
+    pub demand: Option<f64>,
+    /// People served; the demand is people × --litres-per-person.
+    #[arg(long, value_name = "N")]
+    pub people: Option<u32>,
+    /// Litres per person and day with --people; default 3 (drinking only).
+    #[arg(
+        long,
+        value_name = "L",
+        allow_negative_numbers = true,
+        requires = "people"
+    )]
+    pub litres_per_person: Option<f64>,
+    /// Fraction of years in which the demand must be met, strictly between 0 and 1.
+    #[arg(long, default_value_t = DEFAULT_CONFIDENCE, allow_negative_numbers = true)]
+    pub confidence: f64,
+    /// Stochastic weather years simulated per variant.
+    #[arg(long, default_value_t = DEFAULT_YEARS)]
+    pub years: u32,
+    /// Seed of the weather generator (the same seed gives the same figures).
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Text)]
+    pub format: Format,
+}
+
+fn bad_option(file: &std::path::Path, option: &str, message: String) -> anyhow::Error {
+    stillbench::Error::Design(DesignErrors(vec![DesignIssue {
+        file: file.to_path_buf(),
+        line_col: None,
+        path: option.into(),
+        message,
+    }]))
+    .into()
+}
+
+/// The demand [L/day] and a sentence saying where it came from.
+fn resolve_demand(
+    args: &SizeArgs,
+    loaded: &stillbench::design::LoadedDesign,
+) -> anyhow::Result<(f64, String)> {
+    let file = &loaded.source;
+    if let Some(d) = args.demand {
+        return Ok((d, format!("{d} L/day (--demand)")));
+    }
+    if let Some(p) = args.people {
+        if p == 0 {
+            return Err(bad_option(
+                file,
+                "--people",
+                "at least one person is needed".into(),
+            ));
+        }
+        let per = args.litres_per_person.unwrap_or(DRINKING_L_PER_PERSON_DAY);
+        if !(per.is_finite() && per > 0.0) {
+            return Err(bad_option(
+                file,
+                "--litres-per-person",
+                format!("must be a positive number of litres, got {per}"),
+            ));
+        }
+        let total = f64::from(p) * per;
+        return Ok((
+            total,
+            format!("{p} people × {per} L/person/day = {total} L/day"),
+        ));
+    }
+    match &loaded.design.project.demand {
+        Some(d) => {
+            let total = d.total_litres_per_day();
+            Ok((
+                total,
+                format!("{total} L/day (the design's [project.demand])"),
+            ))
+        }
+        None => Err(bad_option(
+            file,
+            "--demand",
+            "no demand given: pass --demand L_PER_DAY or --people N, or add \
+             [project.demand] to the design"
+                .into(),
+        )),
+    }
+}
+
+/// Run `size`.
+pub fn run(args: &SizeArgs) -> anyhow::Result<()> {
+    let loaded = super::load(args.design.as_deref())?;
+    let (demand_l_day, demand_note) = resolve_demand(args, &loaded)?;
+    let opts = SizeOptions {
+        demand_l_day,
+        confidence: args.confidence,
+        years: args.years,
+        seed: args.seed,
+    };
+    let rep = size::size_design(&loaded, &opts, &stills::RunOptions::default())?;
+    for s in &rep.skipped {
+        eprintln!("note: `{}` is not sized: {}", s.name, s.reason);
+    }
+    let mut out = std::io::stdout().lock();
+    match args.format {
+        Format::Text => {
+            write_text(&mut out, &loaded.design.project.title, &demand_note, &rep)?;
+            stillbench::cautions::write_cautions(&mut out)?;
+        }
+        Format::Json => {
+            serde_json::to_writer_pretty(&mut out, &rep).context("writing JSON")?;
+            writeln!(out)?;
+        }
+        Format::Csv => write_csv(&mut out, &rep)?,
+    }
+    Ok(())
+}
+
+/// Write the report as text.
+pub fn write_text(
+    out: &mut impl Write,
+    title: &str,
+    demand_note: &str,
+    rep: &SizeReport,
+) -> std::io::Result<()> {
+    let o = &rep.options;
+    let cur = &rep.currency;
+    writeln!(out, "{title}\n")?;
+    writeln!(out, "demand: {demand_note}")?;
+    writeln!(
+        out,
+        "met in the worst month in at least {:.0} % of {} stochastic years (seed {})",
+        o.confidence * 100.0,
+        o.years,
+        o.seed
+    )?;
+    writeln!(
+        out,
+        "per person (Sphere Handbook 2018, from memory): drinking {DRINKING_L_PER_PERSON_DAY} \
+         L/day, drinking and cooking {DRINKING_AND_COOKING_L_PER_PERSON_DAY} L/day\n"
+    )?;
+    writeln!(
+        out,
+        "{:<20} {:>6} {:>10} {:>12} {:>6} {:>12} {:>6} {:>8} {:>9} {:>10} {:>10} {:>8}",
+        "variant",
+        "units",
+        "area m²",
+        format!("capital {cur}"),
+        "worst",
+        "array L/day",
+        "met %",
+        "sun noon",
+        "pitch m",
+        "land m²",
+        "storage L",
+        "low days"
+    )?;
+    for s in &rep.sized {
+        writeln!(
+            out,
+            "{:<20} {:>6} {:>10.1} {:>12.0} {:>6} {:>12.1} {:>6.0} {:>7.1}° {:>9.2} {:>10.1} {:>10.0} {:>8}",
+            s.name,
+            s.units,
+            s.footprint_m2,
+            s.capital,
+            s.worst_month,
+            s.array_worst_month_l_day,
+            s.met_fraction * 100.0,
+            s.noon_elevation_deg,
+            s.row_pitch_m,
+            s.land_m2,
+            s.storage_l,
+            s.longest_low_run_days
+        )?;
+    }
+    let with_rain: Vec<_> = rep.sized.iter().filter(|s| !s.rain.is_empty()).collect();
+    if !with_rain.is_empty() {
+        writeln!(
+            out,
+            "\nRain the covers would catch (not distillate; runoff coefficient {}, common \
+             practice), L/month:",
+            rep.runoff_coefficient
+        )?;
+        write!(out, "{:<20}", "variant")?;
+        for m in 1..=12 {
+            write!(out, " {m:>7}")?;
+        }
+        writeln!(out)?;
+        for s in with_rain {
+            write!(out, "{:<20}", s.name)?;
+            for r in &s.rain {
+                write!(out, " {:>7.0}", r.caught_l)?;
+            }
+            writeln!(out)?;
+        }
+    }
+    writeln!(
+        out,
+        "\nworst: the month that set the size; met %: share of the simulated years the array \
+         meets;\nsun noon: sun elevation at noon on the worst month's average day; pitch: plan \
+         depth + the\nnoon shadow of the row's top edge; land: units × length × pitch; storage: \
+         the tank that\ncarries the deficit of low-output days (array output below the demand), \
+         at the confidence;\nlow days: the longest run of low-output days, at the confidence."
+    )?;
+    if !rep.skipped.is_empty() {
+        writeln!(out, "\nNot sized:")?;
+        for s in &rep.skipped {
+            writeln!(out, "  {}: {}", s.name, s.reason)?;
+        }
+    }
+    Ok(())
+}
+
+fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+/// Write the sizing as CSV, one row per sized variant.
+pub fn write_csv(out: &mut impl Write, rep: &SizeReport) -> std::io::Result<()> {
+    writeln!(
+        out,
+        "variant,kind,demand_l_day,confidence,years,seed,units,footprint_m2,capital,currency,\
+         worst_month,array_worst_month_l_day,met_fraction,noon_elevation_deg,row_height_m,\
+         row_gap_m,row_pitch_m,land_m2,storage_l,longest_low_run_days"
+    )?;
+    let o = &rep.options;
+    for s in &rep.sized {
+        writeln!(
+            out,
+            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
+            csv_field(&s.name),
+            csv_field(&s.kind),
+            o.demand_l_day,
+            o.confidence,
+            o.years,
+            o.seed,
+            s.units,
+            s.footprint_m2,
+            s.capital,
+            csv_field(&rep.currency),
+            s.worst_month,
+            s.array_worst_month_l_day,
+            s.met_fraction,
+            s.noon_elevation_deg,
+            s.row_height_m,
+            s.row_gap_m,
+            s.row_pitch_m,
+            s.land_m2,
+            s.storage_l,
+            s.longest_low_run_days
+        )?;
+    }
+    Ok(())
+}
