@@ -7,7 +7,7 @@
 
 use stillbench::climate::{SkyModel, WeatherSeries, WeatherSource};
 use stillbench::design;
-use stillbench::network::{Solver, SolverSettings, StepRecord};
+use stillbench::network::{Solver, StepRecord};
 use stillbench::stills::{self, HourContext, RunOptions, SiteWeather};
 
 fn main() {
@@ -109,7 +109,7 @@ fn bench_step(bencher: divan::Bencher, (loaded, w): (design::LoadedDesign, SiteW
     model
         .hour_inputs(&ctx, &start, &mut inputs)
         .expect("hour inputs");
-    let mut solver = Solver::new(net, SolverSettings::default()).expect("solver");
+    let mut solver = Solver::new(net, RunOptions::default().settings).expect("solver");
     let mut record = StepRecord::new(net);
     bencher.bench_local(|| {
         let mut s = start.clone();
