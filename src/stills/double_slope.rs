@@ -13,6 +13,7 @@
 //! convective and evaporative fluxes grow with the brine-to-face difference. Long-wave
 //! radiation likewise goes half to each face.
 
+use super::materials::Materials;
 use std::sync::Arc;
 
 use super::single_slope::{
@@ -20,7 +21,7 @@ use super::single_slope::{
     COVER_VOLUMETRIC_HEAT_J_M3_K, LINER_TO_BRINE_W_M2_K, MIN_COVER_HEIGHT_M,
     STEEL_VOLUMETRIC_HEAT_J_M3_K, WALL_TO_COVER_CONVECTION_W_M2_K, WALL_TO_COVER_VIEW,
     WATER_EMISSIVITY, cover_outside_coefficient_w_m2_k, enclosure_air, internal_correlation,
-    layers_of, net_error, sky_temperature_k,
+    net_error, sky_temperature_k,
 };
 use super::sunlight::{
     Enclosure, GableSection, InsideShares, OpticsSwitches, StillOptics, SunlightSplit,
@@ -91,29 +92,11 @@ impl DoubleSlopeStill {
         sw: LossSwitches,
     ) -> Result<Self, Error> {
         let name = variant.name.as_str();
-        let missing = |what: &str| Error::Model {
-            variant: name.to_owned(),
-            at: String::new(),
-            reason: format!("{what} has no optical properties in the materials library"),
-        };
-        let cover = lib
-            .get(&variant.cover)
-            .and_then(|i| i.cover)
-            .ok_or_else(|| missing("the cover"))?;
-        let liner = lib
-            .get(&k.liner)
-            .and_then(|i| i.surface().copied())
-            .ok_or_else(|| missing("the liner"))?;
-        let fix = |e: Error| match e {
-            Error::Model { at, reason, .. } => Error::Model {
-                variant: name.to_owned(),
-                at,
-                reason,
-            },
-            other => other,
-        };
-        let base_layers = layers_of(&k.base_insulation, lib, "base_insulation").map_err(fix)?;
-        let side_layers = layers_of(&k.side_insulation, lib, "side_insulation").map_err(fix)?;
+        let m = Materials::new(variant, lib);
+        let cover = m.cover("the cover", &variant.cover)?;
+        let liner = m.surface("the liner", &k.liner)?;
+        let base_layers = m.layers(&k.base_insulation, "base_insulation")?;
+        let side_layers = m.layers(&k.side_insulation, "side_insulation")?;
         let sw = sw.effective();
 
         let w = variant.width_m;

@@ -23,6 +23,7 @@
 //! interval, so the energy balance books every interval of the day.
 
 pub mod double_slope;
+mod materials;
 pub mod multi_effect;
 pub mod render;
 pub mod single_slope;

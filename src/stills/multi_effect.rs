@@ -31,13 +31,14 @@
 //! ([`KindDetails::MultiEffect`]: sink heat, day-mean rise, absorber and last-plate peaks and
 //! a note in words).
 
+use super::materials::Materials;
 use std::sync::Arc;
 
 use super::sunlight::{FlatOptics, SunlightSplit};
 use super::wick::{
     COVER_HEIGHT_M, RUN_OFF_SUN_SHARE, WICK_CONTACT_W_M2_K, WICK_DRY_SHARE,
-    cover_outside_coefficient_w_m2_k, evaporation_estimate_kg_s, layers_of, net_error,
-    run_off_kg_s, sky_temperature_k,
+    cover_outside_coefficient_w_m2_k, evaporation_estimate_kg_s, net_error, run_off_kg_s,
+    sky_temperature_k,
 };
 use super::{HourContext, KindDetails, RunTotals, StillModel};
 use crate::climate::Plane;
@@ -191,28 +192,12 @@ impl MultiEffectStill {
         pressure_pa: f64,
     ) -> Result<Self, Error> {
         let name = variant.name.as_str();
-        let missing = |what: &str| Error::Model {
-            variant: name.to_owned(),
-            at: String::new(),
-            reason: format!("{what} has no properties for this use in the materials library"),
-        };
-        let glazing = lib
-            .get(&variant.cover)
-            .and_then(|i| i.cover)
-            .ok_or_else(|| missing("the glazing"))?;
-        let absorber = lib
-            .get(&k.absorber)
-            .and_then(|i| i.surface().copied())
-            .ok_or_else(|| missing("the absorber"))?;
-        let cloth = lib
-            .get(&k.wick_cloth)
-            .and_then(|i| i.wick)
-            .ok_or_else(|| missing("the wick cloth"))?;
-        let plate = lib
-            .get(&k.plate)
-            .and_then(|i| i.plate)
-            .ok_or_else(|| missing("the plate"))?;
-        let side = layers_of(name, &k.side_insulation, lib, "side_insulation")?;
+        let m = Materials::new(variant, lib);
+        let glazing = m.cover("the glazing", &variant.cover)?;
+        let absorber = m.surface("the absorber", &k.absorber)?;
+        let cloth = m.wick("the wick cloth", &k.wick_cloth)?;
+        let plate = m.plate("the plate", &k.plate)?;
+        let side = m.layers(&k.side_insulation, "side_insulation")?;
         let n_stages = k.stages.max(1) as usize;
         let footprint = variant.footprint_m2();
         let tilt = k.glazing_tilt_deg.to_radians();
@@ -354,7 +339,11 @@ impl MultiEffectStill {
             LossPath::Base,
         );
         let net = b.build().map_err(|e| net_error(name, &e))?;
-        let first_stage_link = first_stage_link.ok_or_else(|| missing("a stage"))?;
+        let first_stage_link = first_stage_link.ok_or_else(|| Error::Model {
+            variant: name.to_owned(),
+            at: String::new(),
+            reason: "the stack has no first stage".to_owned(),
+        })?;
         let optics = FlatOptics {
             tilt_rad: tilt,
             cover_area_m2: area,

@@ -6,6 +6,7 @@
 //! the inner walls above the brine. Boundaries: ambient air, sky, ground (the month's mean
 //! air temperature, common practice, no source).
 
+use super::materials::Materials;
 use std::sync::Arc;
 
 use super::sunlight::{
@@ -14,7 +15,7 @@ use super::sunlight::{
 use super::{Basin, HourContext, KindDetails, StillModel};
 use crate::climate::Plane;
 use crate::design::{
-    BasinKind, Condensate, InternalCorrelation as DesignCorrelation, Layer, Library, LossSwitches,
+    BasinKind, Condensate, InternalCorrelation as DesignCorrelation, Library, LossSwitches,
     SingleSlope, Variant,
 };
 use crate::error::Error;
@@ -87,29 +88,6 @@ pub struct SingleSlopeStill {
     set_brine_kg: f64,
     switches: LossSwitches,
     details: KindDetails,
-}
-
-pub(crate) fn layers_of(
-    layers: &[Layer],
-    lib: &Library,
-    field: &str,
-) -> Result<Vec<(f64, f64)>, Error> {
-    layers
-        .iter()
-        .map(|l| {
-            lib.get(&l.material)
-                .and_then(|i| i.insulation.as_ref())
-                .map(|p| (l.thickness_mm / 1000.0, p.conductivity_w_m_k))
-                .ok_or_else(|| Error::Model {
-                    variant: String::new(),
-                    at: String::new(),
-                    reason: format!(
-                        "{field}: material `{}` has no insulation properties",
-                        l.material
-                    ),
-                })
-        })
-        .collect()
 }
 
 pub(crate) fn net_error(variant: &str, e: &NetworkError) -> Error {
@@ -214,29 +192,11 @@ impl SingleSlopeStill {
         pressure_pa: f64,
     ) -> Result<Self, Error> {
         let name = variant.name.as_str();
-        let missing = |what: &str| Error::Model {
-            variant: name.to_owned(),
-            at: String::new(),
-            reason: format!("{what} has no optical properties in the materials library"),
-        };
-        let cover = lib
-            .get(&variant.cover)
-            .and_then(|i| i.cover)
-            .ok_or_else(|| missing("the cover"))?;
-        let liner = lib
-            .get(&k.liner)
-            .and_then(|i| i.surface().copied())
-            .ok_or_else(|| missing("the liner"))?;
-        let fix = |e: Error| match e {
-            Error::Model { at, reason, .. } => Error::Model {
-                variant: name.to_owned(),
-                at,
-                reason,
-            },
-            other => other,
-        };
-        let base_layers = layers_of(&k.base_insulation, lib, "base_insulation").map_err(fix)?;
-        let side_layers = layers_of(&k.side_insulation, lib, "side_insulation").map_err(fix)?;
+        let m = Materials::new(variant, lib);
+        let cover = m.cover("the cover", &variant.cover)?;
+        let liner = m.surface("the liner", &k.liner)?;
+        let base_layers = m.layers(&k.base_insulation, "base_insulation")?;
+        let side_layers = m.layers(&k.side_insulation, "side_insulation")?;
         let sw = k.losses.effective();
 
         let w = variant.width_m;

@@ -14,12 +14,13 @@
 //! ([`InternalCorrelation::InclinedEnclosure`], plate spacing = the gap), not Dunkle's
 //! horizontal-basin relation, with the evaporative flux by Dunkle's Lewis-relation form.
 
+use super::materials::Materials;
 use std::sync::Arc;
 
 use super::sunlight::{FlatOptics, SunlightSplit};
 use super::{HourContext, KindDetails, RunTotals, StillModel};
 use crate::climate::Plane;
-use crate::design::{Condensate, Layer, Library, Variant, Wick};
+use crate::design::{Condensate, Library, Variant, Wick};
 use crate::error::Error;
 use crate::network::{
     BoundaryId, CorrelationEnclosure, EnclosureModel, Inputs, LinkId, LossPath, Network,
@@ -185,30 +186,6 @@ pub(crate) fn enclosure_air(pressure_pa: f64, gap_m: f64) -> EnclosureAir {
     }
 }
 
-pub(crate) fn layers_of(
-    variant: &str,
-    layers: &[Layer],
-    lib: &Library,
-    field: &str,
-) -> Result<Vec<(f64, f64)>, Error> {
-    layers
-        .iter()
-        .map(|l| {
-            lib.get(&l.material)
-                .and_then(|i| i.insulation.as_ref())
-                .map(|p| (l.thickness_mm / 1000.0, p.conductivity_w_m_k))
-                .ok_or_else(|| Error::Model {
-                    variant: variant.to_owned(),
-                    at: String::new(),
-                    reason: format!(
-                        "{field}: material `{}` has no insulation properties",
-                        l.material
-                    ),
-                })
-        })
-        .collect()
-}
-
 pub(crate) fn net_error(variant: &str, e: &NetworkError) -> Error {
     Error::Model {
         variant: variant.to_owned(),
@@ -253,20 +230,10 @@ impl WickStill {
         pressure_pa: f64,
     ) -> Result<Self, Error> {
         let name = variant.name.as_str();
-        let missing = |what: &str| Error::Model {
-            variant: name.to_owned(),
-            at: String::new(),
-            reason: format!("{what} has no properties for this use in the materials library"),
-        };
-        let cover = lib
-            .get(&variant.cover)
-            .and_then(|i| i.cover)
-            .ok_or_else(|| missing("the cover"))?;
-        let cloth = lib
-            .get(&k.cloth)
-            .and_then(|i| i.wick)
-            .ok_or_else(|| missing("the wick cloth"))?;
-        let back_layers = layers_of(name, &k.backing_insulation, lib, "backing_insulation")?;
+        let m = Materials::new(variant, lib);
+        let cover = m.cover("the cover", &variant.cover)?;
+        let cloth = m.wick("the wick cloth", &k.cloth)?;
+        let back_layers = m.layers(&k.backing_insulation, "backing_insulation")?;
         let footprint = variant.footprint_m2();
         let tilt = k.cover_tilt_deg.to_radians();
         let area = footprint / tilt.cos();
