@@ -17,11 +17,11 @@ use super::materials::Materials;
 use std::sync::Arc;
 
 use super::single_slope::{
-    BASE_FILM_W_M2_K, CONCRETE_CONDUCTIVITY_W_M_K, CONCRETE_VOLUMETRIC_HEAT_J_M3_K,
-    COVER_VOLUMETRIC_HEAT_J_M3_K, LINER_TO_BRINE_W_M2_K, MIN_COVER_HEIGHT_M,
-    STEEL_VOLUMETRIC_HEAT_J_M3_K, WALL_TO_COVER_CONVECTION_W_M2_K, WALL_TO_COVER_VIEW,
-    WATER_EMISSIVITY, cover_outside_coefficient_w_m2_k, enclosure_air, internal_correlation,
-    net_error, sky_temperature_k,
+    CONCRETE_CONDUCTIVITY_W_M_K, CONCRETE_VOLUMETRIC_HEAT_J_M3_K, COVER_VOLUMETRIC_HEAT_J_M3_K,
+    LINER_TO_BRINE_W_M2_K, MIN_COVER_HEIGHT_M, STEEL_VOLUMETRIC_HEAT_J_M3_K,
+    WALL_TO_COVER_CONVECTION_W_M2_K, WALL_TO_COVER_VIEW, WATER_EMISSIVITY, base_u_w_m2_k,
+    cover_outside_coefficient_w_m2_k, enclosure_air, internal_correlation, net_error,
+    sky_temperature_k,
 };
 use super::sunlight::{
     Enclosure, GableSection, InsideShares, OpticsSwitches, StillOptics, SunlightSplit,
@@ -193,17 +193,8 @@ impl DoubleSlopeStill {
             LINER_TO_BRINE_W_M2_K * footprint,
             LossPath::Internal,
         );
-        let mut base = Vec::with_capacity(base_layers.len() + 1);
-        if k.basin == BasinKind::Masonry {
-            base.push((0.5 * basin_t_m, basin_k));
-        }
-        base.extend_from_slice(&base_layers);
-        let u_base =
-            conduction_layers_u_w_m2_k(&base, BASE_FILM_W_M2_K).ok_or_else(|| Error::Model {
-                variant: name.to_owned(),
-                at: String::new(),
-                reason: "base insulation layers give no finite conductance".to_owned(),
-            })?;
+        let floor = (k.basin == BasinKind::Masonry).then_some((0.5 * basin_t_m, basin_k));
+        let u_base = base_u_w_m2_k(name, floor, &base_layers)?;
         b.conductance("base", liner_n, ground, u_base * footprint, LossPath::Base);
 
         let mut side_links = Vec::new();

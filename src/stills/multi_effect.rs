@@ -34,11 +34,11 @@
 use super::materials::Materials;
 use std::sync::Arc;
 
+use super::single_slope::{cover_outside_coefficient_w_m2_k, net_error, sky_temperature_k};
 use super::sunlight::{FlatOptics, SunlightSplit};
 use super::wick::{
     COVER_HEIGHT_M, RUN_OFF_SUN_SHARE, WICK_CONTACT_W_M2_K, WICK_DRY_SHARE,
-    cover_outside_coefficient_w_m2_k, evaporation_estimate_kg_s, net_error, run_off_kg_s,
-    sky_temperature_k,
+    evaporation_estimate_kg_s, run_off_kg_s,
 };
 use super::{HourContext, KindDetails, RunTotals, StillModel};
 use crate::climate::Plane;
@@ -555,22 +555,18 @@ impl StillModel for MultiEffectStill {
         let t_air = h.t_air_k;
         let t_sink = self.sink_temperature_k(ctx);
         inputs.set_boundary_k(net, self.air, t_air)?;
-        inputs.set_boundary_k(
-            net,
-            self.sky,
-            sky_temperature_k(t_air, h.t_dew_k, ctx.dew_point_known),
-        )?;
+        inputs.set_boundary_k(net, self.sky, sky_temperature_k(h, ctx.dew_point_known))?;
         inputs.set_boundary_k(net, self.sink, t_sink)?;
         let t_glazing = state.temperature_k(self.glazing).unwrap_or(t_air);
         let t_abs = state.temperature_k(self.absorber).unwrap_or(t_air);
         let h_out = cover_outside_coefficient_w_m2_k(
             h.wind_m_s,
             h.wind_height_m,
+            t_air,
+            t_glazing,
             COVER_HEIGHT_M,
             self.tilt_rad,
             self.area_m2.sqrt(),
-            t_air,
-            t_glazing,
         );
         inputs.set_conductance_w_k(net, self.glazing_to_air, h_out * self.area_m2)?;
         // Absorber to glazing: Hollands et al. (1976) across the dry gap, at the temperatures

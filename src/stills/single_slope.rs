@@ -49,6 +49,23 @@ pub const LINER_TO_BRINE_W_M2_K: f64 = 150.0;
 /// Film coefficient under the base, to the ground [W m⁻² K⁻¹]: the 5.7 of REFERENCES.md §2
 /// (from memory).
 pub const BASE_FILM_W_M2_K: f64 = 5.7;
+/// Overall coefficient from the basin floor down to the ground [W m⁻² K⁻¹]: the floor's own
+/// lower half (`floor` as (thickness [m], conductivity [W m⁻¹ K⁻¹]), for a masonry basin), the
+/// insulation `layers`, and the [`BASE_FILM_W_M2_K`] film, in series
+/// ([`conduction_layers_u_w_m2_k`]).
+pub(crate) fn base_u_w_m2_k(
+    variant: &str,
+    floor: Option<(f64, f64)>,
+    layers: &[(f64, f64)],
+) -> Result<f64, Error> {
+    let all: Vec<(f64, f64)> = floor.into_iter().chain(layers.iter().copied()).collect();
+    conduction_layers_u_w_m2_k(&all, BASE_FILM_W_M2_K).ok_or_else(|| Error::Model {
+        variant: variant.to_owned(),
+        at: String::new(),
+        reason: "base insulation layers give no finite conductance".to_owned(),
+    })
+}
+
 /// Free convection between the inner walls and the cover through the enclosure air
 /// [W m⁻² K⁻¹]. Common practice, no source.
 pub const WALL_TO_COVER_CONVECTION_W_M2_K: f64 = 2.5;
@@ -296,17 +313,8 @@ impl SingleSlopeStill {
         );
 
         // Base: (masonry: half the floor) + insulation + film, to the ground.
-        let mut base = Vec::with_capacity(base_layers.len() + 1);
-        if k.basin == BasinKind::Masonry {
-            base.push((0.5 * basin_t_m, basin_k));
-        }
-        base.extend_from_slice(&base_layers);
-        let u_base =
-            conduction_layers_u_w_m2_k(&base, BASE_FILM_W_M2_K).ok_or_else(|| Error::Model {
-                variant: name.to_owned(),
-                at: String::new(),
-                reason: "base insulation layers give no finite conductance".to_owned(),
-            })?;
+        let floor = (k.basin == BasinKind::Masonry).then_some((0.5 * basin_t_m, basin_k));
+        let u_base = base_u_w_m2_k(name, floor, &base_layers)?;
         b.conductance("base", liner_n, ground, u_base * footprint, LossPath::Base);
 
         // Sides: brine (wetted walls) and walls to air through the side insulation; walls to

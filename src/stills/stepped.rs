@@ -18,10 +18,10 @@ use super::materials::Materials;
 use std::sync::Arc;
 
 use super::single_slope::{
-    BASE_FILM_W_M2_K, COVER_VOLUMETRIC_HEAT_J_M3_K, LINER_TO_BRINE_W_M2_K, MIN_COVER_HEIGHT_M,
+    COVER_VOLUMETRIC_HEAT_J_M3_K, LINER_TO_BRINE_W_M2_K, MIN_COVER_HEIGHT_M,
     STEEL_VOLUMETRIC_HEAT_J_M3_K, WALL_TO_COVER_CONVECTION_W_M2_K, WALL_TO_COVER_VIEW,
-    WATER_EMISSIVITY, cover_outside_coefficient_w_m2_k, enclosure_air, internal_correlation,
-    net_error, sky_temperature_k,
+    WATER_EMISSIVITY, base_u_w_m2_k, cover_outside_coefficient_w_m2_k, enclosure_air,
+    internal_correlation, net_error, sky_temperature_k,
 };
 use super::sunlight::{
     Enclosure, InsideShares, OpticsSwitches, StairSection, StillOptics, SunlightSplit,
@@ -196,14 +196,7 @@ impl SteppedStill {
                 LossPath::Internal,
             );
         }
-        let u_base =
-            conduction_layers_u_w_m2_k(&base_layers, BASE_FILM_W_M2_K).ok_or_else(|| {
-                Error::Model {
-                    variant: name.to_owned(),
-                    at: String::new(),
-                    reason: "base insulation layers give no finite conductance".to_owned(),
-                }
-            })?;
+        let u_base = base_u_w_m2_k(name, None, &base_layers)?;
         b.conductance("base", steps, ground, u_base * footprint, LossPath::Base);
 
         let mut side_links = Vec::new();

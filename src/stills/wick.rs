@@ -17,6 +17,7 @@
 use super::materials::Materials;
 use std::sync::Arc;
 
+use super::single_slope::{cover_outside_coefficient_w_m2_k, net_error, sky_temperature_k};
 use super::sunlight::{FlatOptics, SunlightSplit};
 use super::{HourContext, KindDetails, RunTotals, StillModel};
 use crate::climate::Plane;
@@ -28,14 +29,9 @@ use crate::network::{
 };
 use crate::physics::constants::ZERO_CELSIUS_K;
 use crate::physics::heat_transfer::{
-    EnclosureAir, InternalCorrelation, combined_convection_w_m2_k, conduction_layers_u_w_m2_k,
-    natural_convection_tilted_plate_w_m2_k, wind_convection_watmuff_w_m2_k,
-    wind_speed_at_height_m_s,
+    EnclosureAir, InternalCorrelation, conduction_layers_u_w_m2_k,
 };
 use crate::physics::optics::effective_emissivity_parallel;
-use crate::physics::sky::{
-    berdahl_martin_sky_emissivity, sky_temperature_from_emissivity_k, swinbank_sky_temperature_k,
-};
 use crate::physics::{humid_air, water};
 
 /// Share of the cloth's water holding at or below which the wick counts as dry [-]. Common
@@ -57,50 +53,9 @@ pub const BACK_FILM_W_M2_K: f64 = 5.7;
 pub const RUN_OFF_SUN_SHARE: f64 = 0.6;
 /// Steepest tilt at which Hollands et al.'s correlation holds \[deg\].
 pub const HOLLANDS_MAX_TILT_DEG: f64 = 75.0;
-/// Roughness length of the ground around the still \[m\] (open country, as for the single
-/// slope; Stull 1988, from memory).
-pub const SITE_ROUGHNESS_M: f64 = 0.03;
 /// Height at which the wind on a low still's cover is evaluated \[m\] (common practice, no
 /// source).
 pub const COVER_HEIGHT_M: f64 = 0.5;
-
-/// Convective coefficient from a still's outer cover to the air [W m⁻² K⁻¹].
-///
-/// Watmuff et al.'s wind coefficient ([`wind_convection_watmuff_w_m2_k`]) at the wind brought
-/// to the cover's height by the log law ([`wind_speed_at_height_m_s`]), cube-summed
-/// ([`combined_convection_w_m2_k`]) with free convection from a tilted plate
-/// ([`natural_convection_tilted_plate_w_m2_k`]) at dry-air film properties.
-///
-/// * `wind_m_s` at `wind_height_m` \[m\]; `cover_height_m` \[m\]; `tilt_rad` \[rad\];
-///   `plate_length_m` — characteristic length \[m\]; `t_air_k`, `t_cover_k` \[K\]
-#[allow(clippy::too_many_arguments)]
-pub fn cover_outside_coefficient_w_m2_k(
-    wind_m_s: f64,
-    wind_height_m: f64,
-    cover_height_m: f64,
-    tilt_rad: f64,
-    plate_length_m: f64,
-    t_air_k: f64,
-    t_cover_k: f64,
-) -> f64 {
-    let v = wind_speed_at_height_m_s(wind_m_s, wind_height_m, cover_height_m, SITE_ROUGHNESS_M);
-    let forced = wind_convection_watmuff_w_m2_k(v);
-    let t_film = 0.5 * (t_air_k + t_cover_k);
-    let mu = humid_air::dry_air_viscosity_pa_s(t_film);
-    let k_air = humid_air::dry_air_thermal_conductivity_w_m_k(t_film);
-    let rho = 101_325.0 * crate::physics::constants::MOLAR_MASS_AIR_KG_MOL
-        / (crate::physics::constants::GAS_CONSTANT_J_MOL_K * t_film);
-    let natural = natural_convection_tilted_plate_w_m2_k(
-        t_cover_k,
-        t_air_k,
-        tilt_rad,
-        plate_length_m,
-        k_air,
-        mu / rho,
-        mu * humid_air::DRY_AIR_SPECIFIC_HEAT_J_KG_K / k_air,
-    );
-    combined_convection_w_m2_k(forced, natural)
-}
 
 /// Run-off from a continuously fed wick over the coming period [kg s⁻¹].
 ///
@@ -158,16 +113,6 @@ pub fn evaporation_estimate_kg_s(
     if m.is_finite() { m.max(0.0) } else { 0.0 }
 }
 
-/// Sky temperature for one record \[K\]: Berdahl & Martin from the dew point when it is
-/// known, Swinbank otherwise (as for the single slope).
-pub fn sky_temperature_k(t_air_k: f64, t_dew_k: f64, dew_point_known: bool) -> f64 {
-    if dew_point_known {
-        sky_temperature_from_emissivity_k(berdahl_martin_sky_emissivity(t_dew_k), t_air_k)
-    } else {
-        swinbank_sky_temperature_k(t_air_k)
-    }
-}
-
 /// Humid-air properties of an enclosure at a film temperature of 50 °C, half saturated
 /// (held fixed, as [`CorrelationEnclosure`] expects).
 pub(crate) fn enclosure_air(pressure_pa: f64, gap_m: f64) -> EnclosureAir {
@@ -183,14 +128,6 @@ pub(crate) fn enclosure_air(pressure_pa: f64, gap_m: f64) -> EnclosureAir {
         prandtl: mu * cp / k_air,
         total_pressure_pa: pressure_pa,
         characteristic_length_m: gap_m,
-    }
-}
-
-pub(crate) fn net_error(variant: &str, e: &NetworkError) -> Error {
-    Error::Model {
-        variant: variant.to_owned(),
-        at: String::new(),
-        reason: format!("could not build the network: {e}"),
     }
 }
 
@@ -436,21 +373,17 @@ impl StillModel for WickStill {
         let net = &self.net;
         let t_air = h.t_air_k;
         inputs.set_boundary_k(net, self.air, t_air)?;
-        inputs.set_boundary_k(
-            net,
-            self.sky,
-            sky_temperature_k(t_air, h.t_dew_k, ctx.dew_point_known),
-        )?;
+        inputs.set_boundary_k(net, self.sky, sky_temperature_k(h, ctx.dew_point_known))?;
         let t_cover = state.temperature_k(self.cover).unwrap_or(t_air);
         let t_wick = state.temperature_k(self.wick).unwrap_or(t_air);
         let h_out = cover_outside_coefficient_w_m2_k(
             h.wind_m_s,
             h.wind_height_m,
+            t_air,
+            t_cover,
             COVER_HEIGHT_M,
             self.tilt_rad,
             self.area_m2.sqrt(),
-            t_air,
-            t_cover,
         );
         inputs.set_conductance_w_k(net, self.cover_to_air, h_out * self.area_m2)?;
         let u_back = conduction_layers_u_w_m2_k(&self.back_layers, BACK_FILM_W_M2_K)
