@@ -46,6 +46,8 @@ pub struct Dimension {
 /// A finished drawing.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Drawing {
+    /// The SVG element id (see [`drawing_id`]); every style rule is scoped to it.
+    pub id: String,
     /// The drawing's title (also the SVG `<title>`).
     pub title: String,
     /// The whole SVG document.
@@ -285,7 +287,9 @@ impl Sheet {
         self.record(name, value_deg, "deg", &label, true);
     }
 
-    fn finish(self, title: &str) -> String {
+    /// The SVG document. Every style rule is scoped to the element id `id`, so the drawing
+    /// can sit inline in an HTML page beside other SVGs (charts) without restyling them.
+    fn finish(self, title: &str, id: &str) -> String {
         let m = self.fs * 1.5;
         let (x0, y0) = (self.min.0 - m, self.min.1 - m);
         let (w, h) = (
@@ -293,36 +297,70 @@ impl Sheet {
             self.max.1 - self.min.1 + 2.0 * m,
         );
         let sw = self.fs / 9.0;
+        let fs = self.fs;
         // About 800 px wide on screen, whatever the still's size.
         let px_w = 800.0;
         let px_h = px_w * h / w.max(1e-9);
         let mut s = String::new();
         let _ = writeln!(
             s,
-            r#"<svg xmlns="http://www.w3.org/2000/svg" viewBox="{x0:.2} {y0:.2} {w:.2} {h:.2}" width="{px_w:.0}" height="{px_h:.0}" role="img">"#
+            r#"<svg xmlns="http://www.w3.org/2000/svg" id="{id}" viewBox="{x0:.2} {y0:.2} {w:.2} {h:.2}" width="{px_w:.0}" height="{px_h:.0}" role="img">"#
         );
         let _ = writeln!(s, "<title>{}</title>", escape_xml(title));
-        let _ = writeln!(
-            s,
-            "<style>line,path{{stroke:#1b1b1b;stroke-width:{sw:.3};fill:none}} \
-             .cover{{stroke:#1f5fa8;stroke-width:{:.3}}} .brine{{stroke:#2a8ab8;stroke-dasharray:{:.2} {:.2}}} \
-             .insulation{{fill:#e8e2c8;stroke:#8a8060}} .basin{{fill:#9a9a9a}} .trough{{stroke:#b0401a;stroke-width:{:.3}}} \
-             .ref{{stroke:#888;stroke-dasharray:{:.2} {:.2}}} .dim{{stroke:#555}} \
-             text{{font-family:sans-serif;font-size:{:.2}px;fill:#1b1b1b;stroke:none}} \
-             text.crit{{fill:#b0401a;font-weight:bold}} text.head{{font-size:{:.2}px;font-weight:bold}}</style>",
-            sw * 2.5,
-            self.fs * 0.6,
-            self.fs * 0.4,
-            sw * 3.0,
-            self.fs * 0.3,
-            self.fs * 0.3,
-            self.fs,
-            self.fs * 1.2,
-        );
+        let rules = [
+            format!("line,path{{stroke:#1b1b1b;stroke-width:{sw:.3};fill:none}}"),
+            format!(".cover{{stroke:#1f5fa8;stroke-width:{:.3}}}", sw * 2.5),
+            format!(
+                ".brine{{stroke:#2a8ab8;stroke-dasharray:{:.2} {:.2}}}",
+                fs * 0.6,
+                fs * 0.4
+            ),
+            ".insulation{fill:#e8e2c8;stroke:#8a8060}".to_owned(),
+            ".basin{fill:#9a9a9a}".to_owned(),
+            format!(".trough{{stroke:#b0401a;stroke-width:{:.3}}}", sw * 3.0),
+            format!(
+                ".ref{{stroke:#888;stroke-dasharray:{:.2} {:.2}}}",
+                fs * 0.3,
+                fs * 0.3
+            ),
+            ".dim{stroke:#555}".to_owned(),
+            format!("text{{font-family:sans-serif;font-size:{fs:.2}px;fill:#1b1b1b;stroke:none}}"),
+            "text.crit{fill:#b0401a;font-weight:bold}".to_owned(),
+            format!("text.head{{font-size:{:.2}px;font-weight:bold}}", fs * 1.2),
+        ];
+        s.push_str("<style>");
+        for (i, r) in rules.iter().enumerate() {
+            if i > 0 {
+                s.push(' ');
+            }
+            // Scope every selector of the rule ("a,b{…}" → "#id a,#id b{…}").
+            let (sel, body) = r.split_once('{').unwrap_or((r.as_str(), "}"));
+            let scoped: Vec<String> = sel.split(',').map(|x| format!("#{id} {x}")).collect();
+            s.push_str(&scoped.join(","));
+            s.push('{');
+            s.push_str(body);
+        }
+        s.push_str("</style>\n");
         s.push_str(&self.body);
         s.push_str("</svg>\n");
         s
     }
+}
+
+/// The SVG element id of a variant's drawing: `sb-drawing-` and the name in lower case with
+/// every other character than a-z and 0-9 turned into `-`.
+pub fn drawing_id(variant_name: &str) -> String {
+    let slug: String = variant_name
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() {
+                c.to_ascii_lowercase()
+            } else {
+                '-'
+            }
+        })
+        .collect();
+    format!("sb-drawing-{slug}")
 }
 
 fn layers_mm(layers: &[Layer]) -> f64 {
@@ -702,8 +740,10 @@ pub fn drawing(v: &Variant, lib: &Library) -> Drawing {
     let top = s.max_z_model(sec);
     s.text(sec, (0.0, top + 1.5 * fs), Anchor::Start, "head", &title);
     let dimensions = s.dims.clone();
-    let svg = s.finish(&title);
+    let id = drawing_id(&v.name);
+    let svg = s.finish(&title, &id);
     Drawing {
+        id,
         title,
         svg,
         dimensions,

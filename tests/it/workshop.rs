@@ -84,6 +84,24 @@ fn every_kind_draws_a_well_formed_svg_at_the_design_tilt() {
                 .unwrap();
             assert!(title.contains(&v.name), "{title}");
             assert!(!d.svg.contains("<script"), "{}", v.name);
+            // Styles are scoped to the drawing's id, so an HTML page's other SVGs (charts)
+            // keep their own look.
+            assert_eq!(svg.attribute("id"), Some(d.id.as_str()));
+            let style = svg
+                .children()
+                .find(|n| n.has_tag_name("style"))
+                .and_then(|n| n.text())
+                .unwrap();
+            for rule in style.split('}').map(str::trim).filter(|r| !r.is_empty()) {
+                let selectors = rule.split('{').next().unwrap();
+                for sel in selectors.split(',') {
+                    assert!(
+                        sel.trim().starts_with(&format!("#{} ", d.id)),
+                        "{}: unscoped selector {sel:?}",
+                        v.name
+                    );
+                }
+            }
             assert!(!d.svg.contains("@font-face") && !d.svg.contains("url("));
             // No blank line: the SVG must sit inside one Markdown HTML block.
             assert!(!d.svg.contains("\n\n"), "{}", v.name);
@@ -181,6 +199,7 @@ fn drawing_text_is_escaped() {
     // Not a valid design name (validation forbids it); the drawing must cope anyway.
     v.name = "a<b>&\"c\"".into();
     let d = drawing::drawing(&v, &loaded.library);
+    assert_eq!(d.id, "sb-drawing-a-b---c-");
     assert!(d.svg.contains("a&lt;b&gt;&amp;&quot;c&quot;"), "{}", d.svg);
     roxmltree::Document::parse(&d.svg).unwrap();
     let mut out = Vec::new();
