@@ -431,6 +431,47 @@ fn workshop_template_renders_the_sheet() {
 }
 
 #[test]
+fn every_demo_variant_renders_and_an_include_gives_the_same_text() {
+    let (loaded, evals) = demo();
+    for (i, e) in evals.iter().enumerate() {
+        let s = workshop::workshop_sheet(loaded, i, e).unwrap();
+        let mut out = Vec::new();
+        workshop::write_sheet_markdown(&s, &mut out).unwrap();
+        let md = String::from_utf8(out).unwrap();
+        for l in &s.bom {
+            assert!(
+                md.contains(&format!("| {} | ", l.part)),
+                "{}: {}",
+                s.variant,
+                l.part
+            );
+        }
+        assert!(!md.contains("\n\n\n"), "{}: {md}", s.variant);
+        // The report includes the template from its master under the key `workshop`.
+        let mut env = minijinja::Environment::new();
+        env.add_template(
+            workshop::WORKSHOP_TEMPLATE_NAME,
+            workshop::WORKSHOP_TEMPLATE,
+        )
+        .unwrap();
+        env.add_template("master.md", "# Report\n\n{% include \"workshop.md\" %}")
+            .unwrap();
+        let via_include = env
+            .get_template("master.md")
+            .unwrap()
+            .render(minijinja::context! {
+                workshop => minijinja::Value::from(minijinja::value::Serde(&s))
+            })
+            .unwrap();
+        assert!(
+            via_include.strip_prefix("# Report\n\n") == Some(md.as_str()),
+            "{}: the included sheet differs from the direct rendering",
+            s.variant
+        );
+    }
+}
+
+#[test]
 fn demo_tables_parse_and_merge_with_the_defaults() {
     let (loaded, evals) = demo();
     let d = &loaded.design;
