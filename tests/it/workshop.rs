@@ -578,3 +578,65 @@ fn bad_alternative_and_risk_tables_are_named() {
         }
     }
 }
+
+mod drawing_properties {
+    use super::*;
+    use proptest::prelude::*;
+    use stillbench::design::VariantKind;
+
+    proptest! {
+        #![proptest_config(ProptestConfig::with_cases(64))]
+
+        /// Any geometry (not only the demo's) gives well-formed SVG whose covers sit at the
+        /// design tilt within 0.1° and whose numbers are finite.
+        #[test]
+        fn any_geometry_draws_at_its_tilt(
+            which in 0usize..5,
+            tilt in 1.0f64..80.0,
+            width_m in 0.3f64..10.0,
+            length_m in 0.3f64..50.0,
+            wall_mm in 20.0f64..1000.0,
+            count in 1u32..20,
+            gap_mm in 1.0f64..50.0,
+        ) {
+            let (loaded, _) = demo();
+            let mut v = loaded.design.variants[which].clone();
+            v.width_m = width_m;
+            v.length_m = length_m;
+            match &mut v.kind {
+                VariantKind::SingleSlope(k) => {
+                    k.cover_tilt_deg = tilt;
+                    k.front_wall_mm = wall_mm;
+                }
+                VariantKind::DoubleSlope(k) => {
+                    k.cover_tilt_deg = tilt;
+                    k.side_wall_mm = wall_mm;
+                }
+                VariantKind::Wick(k) => {
+                    k.cover_tilt_deg = tilt;
+                    k.gap_mm = gap_mm * 4.0;
+                }
+                VariantKind::Stepped(k) => {
+                    k.cover_tilt_deg = tilt;
+                    k.trays = count;
+                    k.front_wall_mm = wall_mm;
+                }
+                VariantKind::MultiEffect(k) => {
+                    k.glazing_tilt_deg = tilt;
+                    k.stages = count;
+                    k.gap_mm = gap_mm;
+                }
+            }
+            let d = drawing::drawing(&v, &loaded.library);
+            prop_assert!(roxmltree::Document::parse(&d.svg).is_ok());
+            prop_assert!(!d.svg.contains("NaN") && !d.svg.contains("inf"));
+            let tilts = cover_tilts_deg(&d.svg);
+            prop_assert!(!tilts.is_empty());
+            for t in tilts {
+                prop_assert!((t - tilt).abs() < 0.1, "drawn {} for {}", t, tilt);
+            }
+            // 1 in 100 of the length (common practice, no source).
+            prop_assert!((d.trough_fall_mm - 10.0 * length_m).abs() < 1e-9);
+        }
+    }
+}
