@@ -900,8 +900,9 @@ fn multi_effect(
     s.line(sec, "wall", front, (front.0, 0.0));
     s.line(sec, "wall", back, (back.0, 0.0));
     trough_mark(s, sec, at(0.0, last), 1.0);
-    let g0 = at(0.0, 0.0);
-    s.angle(sec, g0, 0.0, tilt, w * 0.25, "glazing tilt", tilt);
+    // Measured at the high end, in the empty wedge above the glazing.
+    let g1 = at(span, 0.0);
+    s.angle(sec, g1, 180.0, 180.0 + tilt, w * 0.3, "glazing tilt", tilt);
     s.dim_h(sec, 0.0, w, -2.5 * fs, "width in plan", w);
     s.text(sec, (0.0, -5.0 * fs), Anchor::Start, "head", "Side section");
 
@@ -909,7 +910,7 @@ fn multi_effect(
     let scale = (w * 0.5 / stack).floor().clamp(1.0, 50.0);
     let det = View {
         ox: sec.ox,
-        oy: sec.oy + 9.0 * fs + stack * scale,
+        oy: sec.oy + 9.0 * fs,
     };
     let len = w * 0.5;
     let y = |below: f64| -> f64 { -below * scale };
@@ -955,7 +956,7 @@ fn multi_effect(
     );
     s.text(
         det,
-        (len * 0.2 + 0.4 * fs, y(k.glazing_gap_mm * 0.5) - 0.3 * fs),
+        (len * 0.2 + 0.6 * fs, y(k.glazing_gap_mm * 0.5) - 0.3 * fs),
         Anchor::Start,
         "dim",
         &label,
@@ -966,13 +967,13 @@ fn multi_effect(
     s.line(
         det,
         "dim",
-        (len * 0.6, y(top)),
-        (len * 0.6, y(top + k.gap_mm)),
+        (len * 0.05, y(top)),
+        (len * 0.05, y(top + k.gap_mm)),
     );
     s.text(
         det,
-        (len * 0.6 + 0.4 * fs, y(top + k.gap_mm * 0.5) - 0.3 * fs),
-        Anchor::Start,
+        (-0.5 * fs, y(top + k.gap_mm * 0.5) - 0.3 * fs),
+        Anchor::End,
         "crit",
         &gap_label,
     );
