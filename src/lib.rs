@@ -21,6 +21,7 @@ pub mod operation;
 pub mod output;
 pub mod physics;
 pub mod stills;
+pub mod workshop;
 
 pub use error::{Error, ExitCode};
 

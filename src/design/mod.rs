@@ -13,17 +13,20 @@
 use std::fmt;
 use std::path::{Path, PathBuf};
 
+mod alternatives;
 mod climate_inputs;
 mod costs;
 mod library;
 mod operation;
 mod parse;
 mod reader;
+mod risks;
 mod schema;
 pub mod spans;
 mod summary;
 mod validate;
 
+pub use alternatives::{Alternative, MAX_COST_PER_LITRE, MAX_LIST_ENTRIES};
 pub use climate_inputs::EPW_WIND_HEIGHT_M;
 pub use costs::{ComplexityWeights, Costs, LabourRates, PartItems, Substitutes};
 pub use library::{
@@ -34,6 +37,10 @@ pub use operation::{
     DEFAULT_BAND_MM, DEFAULT_CONTROL_INTERVAL_S, DEFAULT_DELAY_S, DEFAULT_FLUSH_HOUR,
     DEFAULT_FLUSH_RATIO, DEFAULT_REFILL_HOURS, DEFAULT_VALVE_MAX_L_H, DEFAULT_WETTING_DEPTH_MM,
     FeedMode, FlushMode, Operation, OperationIssue,
+};
+pub use risks::{
+    DEFAULT_RISK_IDS, DEFAULT_RISK_SOURCE, Level, Risk, RiskEntry, RiskOrigin, default_risks,
+    merged_risks,
 };
 pub use schema::{
     BasinKind, Climate, Columns, DAYS_IN_MONTH, DEFAULT_LITRES_PER_PERSON_DAY, DEFAULT_RH_PERCENT,

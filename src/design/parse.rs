@@ -35,7 +35,15 @@ impl Files for Disk {
 }
 
 /// The top-level keys of a design file.
-const ROOT_FIELDS: [&str; 5] = ["project", "materials", "site", "variant", "costs"];
+const ROOT_FIELDS: [&str; 7] = [
+    "project",
+    "materials",
+    "site",
+    "variant",
+    "costs",
+    "alternative",
+    "risk",
+];
 
 /// The type of a value with its article, for messages ("an integer", "a table").
 fn a_type(v: &DeValue<'_>) -> String {
@@ -102,6 +110,16 @@ pub(crate) fn parse_design(
     if let Some(c) = &costs {
         super::costs::validate(&mut r, c);
     }
+    let alternatives: Option<Vec<super::alternatives::Alternative>> =
+        super::alternatives::read_table_array(&mut r, root, "alternative");
+    if let Some(a) = &alternatives {
+        super::alternatives::validate(&mut r, a);
+    }
+    let risks: Option<Vec<super::risks::RiskEntry>> =
+        super::alternatives::read_table_array(&mut r, root, "risk");
+    if let Some(k) = &risks {
+        super::risks::validate(&mut r, k);
+    }
 
     if let Some(p) = &project {
         validate::project(&mut r, p, library.as_ref().map(|(l, _)| l));
@@ -118,14 +136,20 @@ pub(crate) fn parse_design(
         Some((l, p)) => (Some(l), p),
         None => (None, PathBuf::new()),
     };
-    match (project, materials_path, site, variants, library, costs) {
+    match (
+        (project, materials_path, site, variants, library, costs),
+        (alternatives, risks),
+    ) {
         (
-            Some(project),
-            Some(materials),
-            Some(site),
-            Some(variants),
-            Some(library),
-            Some(costs),
+            (
+                Some(project),
+                Some(materials),
+                Some(site),
+                Some(variants),
+                Some(library),
+                Some(costs),
+            ),
+            (Some(alternatives), Some(risks)),
         ) if issues.is_empty() => Ok(LoadedDesign {
             design: Design {
                 project,
@@ -133,6 +157,8 @@ pub(crate) fn parse_design(
                 site,
                 variants,
                 costs,
+                alternatives,
+                risks,
             },
             library,
             source: origin.to_path_buf(),

@@ -38,6 +38,11 @@ pub struct Design {
     pub variants: Vec<Variant>,
     /// `[costs]` (optional; every field has a default).
     pub costs: super::costs::Costs,
+    /// `[[alternative]]` in file order (optional; may be empty).
+    pub alternatives: Vec<super::alternatives::Alternative>,
+    /// `[[risk]]` in file order (optional; the defaults apply whatever is given, see
+    /// [`super::merged_risks`]).
+    pub risks: Vec<super::risks::RiskEntry>,
 }
 
 /// `[project]`.

@@ -12,7 +12,7 @@ use super::spans::{self, hint};
 
 /// One end of an allowed interval.
 #[derive(Clone, Copy)]
-enum B {
+pub(super) enum B {
     /// The end is allowed.
     In(f64),
     /// The end itself is not allowed.
@@ -52,7 +52,7 @@ fn interval(lo: B, hi: B, unit: &str) -> String {
 }
 
 /// Check `v` lies in the interval; record an error at `path` if not. NaN and infinities fail.
-fn range(r: &mut Reader<'_>, path: &str, v: f64, lo: B, hi: B, unit: &str) -> bool {
+pub(super) fn range(r: &mut Reader<'_>, path: &str, v: f64, lo: B, hi: B, unit: &str) -> bool {
     if !v.is_finite() {
         r.error(
             path,
@@ -79,7 +79,7 @@ fn opt_range(r: &mut Reader<'_>, path: &str, v: Option<f64>, lo: B, hi: B, unit:
     }
 }
 
-fn text_len(r: &mut Reader<'_>, path: &str, s: &str, max: usize) {
+pub(super) fn text_len(r: &mut Reader<'_>, path: &str, s: &str, max: usize) {
     let n = s.trim().chars().count();
     if n == 0 || n > max {
         r.error(

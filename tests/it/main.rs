@@ -17,3 +17,4 @@ mod stills_double_slope;
 mod stills_multi_effect;
 mod stills_stepped;
 mod stills_wick;
+mod workshop;
