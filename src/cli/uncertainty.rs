@@ -161,7 +161,13 @@ pub fn write_percentiles(out: &mut impl Write, rep: &UncertaintyReport) -> std::
         out,
         "det. = deterministic (monthly average days, nominal parameters), as `simulate` and \
          `compare` report it."
-    )
+    )?;
+    for v in &rep.variants {
+        for n in &v.notes {
+            writeln!(out, "note: {}: {n}", v.name)?;
+        }
+    }
+    Ok(())
 }
 
 /// Write the whole report as text.

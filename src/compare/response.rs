@@ -90,15 +90,18 @@ pub struct VariantResponse {
     pub deterministic_worst_month_l_m2_day: f64,
     /// Mean daily yield of each month in the ordinary run [L m⁻² day⁻¹].
     pub nominal_month_l_m2_day: [f64; 12],
-    /// Daily global horizontal irradiation of each month's clearness levels [J m⁻²].
-    pub level_h_j_m2: [[f64; N_LEVELS]; 12],
+    /// Daily global horizontal irradiation of each month's clearness levels, ascending
+    /// [J m⁻²] (a level whose run failed is left out, see `notes`).
+    pub level_h_j_m2: [Vec<f64>; 12],
     /// Daily yield at each level [L m⁻² day⁻¹].
-    pub level_l_m2_day: [[f64; N_LEVELS]; 12],
+    pub level_l_m2_day: [Vec<f64>; 12],
     /// Extraterrestrial daily irradiation on a horizontal surface, day 1…365 [J m⁻²].
     #[serde(skip)]
     pub h0_j_m2: Vec<f64>,
     /// Fitted factors of the parameters that apply to this variant.
     pub factors: Vec<ParameterFactor>,
+    /// Fitting runs that failed even with a longer run, and were left out.
+    pub notes: Vec<String>,
 }
 
 /// Piecewise-linear interpolation through `(xs, ys)` (xs ascending), extrapolating the end
@@ -279,6 +282,10 @@ pub fn fit_responses(
         .map(|&p| level_weather(loaded, &model, &base, p))
         .collect::<Result<_, _>>()?;
     let opts = RunOptions::default();
+    let long = RunOptions {
+        max_days: 3 * opts.max_days,
+        ..opts
+    };
     let mut jobs: Vec<(usize, Job)> = Vec::new();
     for (i, v) in loaded.design.variants.iter().enumerate() {
         jobs.push((i, Job::Nominal));
@@ -297,7 +304,14 @@ pub fn fit_responses(
     let results: Vec<Result<[f64; 12], Error>> = jobs
         .par_iter()
         .map(|&(i, job)| {
-            let r = run_job(loaded, i, job, parameters, &base, &levels, &opts);
+            let r = match run_job(loaded, i, job, parameters, &base, &levels, &opts) {
+                // A fitting run away from nominal may settle slowly (a nearly dark day, a
+                // flush cycle): try once more with three times the days.
+                Err(Error::Model { .. }) if !matches!(job, Job::Nominal) => {
+                    run_job(loaded, i, job, parameters, &base, &levels, &long)
+                }
+                other => other,
+            };
             let n = done.fetch_add(1, Ordering::Relaxed) + 1;
             if let Some(p) = progress {
                 p(n, total);
@@ -313,67 +327,78 @@ pub fn fit_responses(
         let n = jobs[at..].iter().take_while(|(j, _)| *j == i).count();
         let kinds = &jobs[at..at + n];
         at += n;
-        let mut months: Vec<[f64; 12]> = Vec::with_capacity(n);
-        let mut failure = None;
-        // Take all n results even after a failure, so the next variant starts in place.
-        for r in results.by_ref().take(n) {
-            match r {
-                Ok(m) => months.push(m),
-                Err(Error::Model { reason, at, .. }) => {
-                    if failure.is_none() {
-                        failure = Some(format!("{reason}{at}"));
-                    }
-                }
-                Err(e) => return Err(e),
-            }
-        }
-        if let Some(reason) = failure {
-            skipped.push(Skipped {
-                name: v.name.clone(),
-                reason,
-            });
-            continue;
-        }
-        let nominal = months[0];
-        let mut level_h = [[0.0; N_LEVELS]; 12];
-        let mut level_y = [[0.0; N_LEVELS]; 12];
-        let mut factors = Vec::new();
-        for ((_, job), m) in kinds.iter().zip(&months) {
-            match *job {
-                Job::Nominal => {}
-                Job::Level(l) => {
+        let mut nominal = None;
+        let mut nominal_failure = None;
+        let mut level_h: [Vec<f64>; 12] = std::array::from_fn(|_| Vec::new());
+        let mut level_y: [Vec<f64>; 12] = std::array::from_fn(|_| Vec::new());
+        let mut lows: Vec<(usize, [f64; 12])> = Vec::new();
+        let mut highs: Vec<(usize, [f64; 12])> = Vec::new();
+        let mut notes = Vec::new();
+        // Take all n results, so the next variant starts in place.
+        for (&(_, job), r) in kinds.iter().zip(results.by_ref().take(n)) {
+            match (job, r) {
+                (Job::Nominal, Ok(m)) => nominal = Some(m),
+                (Job::Level(l), Ok(m)) => {
                     for month in 1..=12u32 {
                         let mi = (month - 1) as usize;
                         let day = table.day(klein_recommended_day(month));
-                        level_h[mi][l] =
-                            model.distribution(month).quantile(LEVELS[l]) * day.h0_j_m2;
-                        level_y[mi][l] = m[mi];
+                        let kt = model.distribution(month).quantile(LEVELS[l]);
+                        level_h[mi].push(kt * day.h0_j_m2);
+                        level_y[mi].push(m[mi]);
                     }
                 }
-                Job::Low(k) => {
-                    let p = &parameters[k];
-                    factors.push(ParameterFactor {
-                        kind: p.kind,
-                        low: p.low(),
-                        nominal: p.nominal(),
-                        high: p.high(),
-                        low_month_l_m2_day: *m,
-                        high_month_l_m2_day: *m,
-                        low_annual_l_m2: annual(m),
-                        high_annual_l_m2: annual(m),
-                    });
-                }
-                Job::High(k) => {
-                    if let Some(f) = factors
-                        .iter_mut()
-                        .rev()
-                        .find(|f| f.kind == parameters[k].kind)
-                    {
-                        f.high_month_l_m2_day = *m;
-                        f.high_annual_l_m2 = annual(m);
+                (Job::Low(k), Ok(m)) => lows.push((k, m)),
+                (Job::High(k), Ok(m)) => highs.push((k, m)),
+                (job, Err(Error::Model { reason, at, .. })) => {
+                    let why = format!("{reason}{at}");
+                    match job {
+                        Job::Nominal => nominal_failure = Some(why),
+                        Job::Level(l) => notes.push(format!(
+                            "clearness level {:.0} % left out of the fit: {why}",
+                            LEVELS[l] * 100.0
+                        )),
+                        Job::Low(k) | Job::High(k) => notes.push(format!(
+                            "{} left out (treated as certain) for this variant: {why}",
+                            parameters[k].kind.key()
+                        )),
                     }
                 }
+                (_, Err(e)) => return Err(e),
             }
+        }
+        let Some(nominal) = nominal else {
+            skipped.push(Skipped {
+                name: v.name.clone(),
+                reason: nominal_failure.unwrap_or_else(|| "no nominal run".into()),
+            });
+            continue;
+        };
+        if level_h[0].len() < 2 {
+            skipped.push(Skipped {
+                name: v.name.clone(),
+                reason: format!(
+                    "fewer than two clearness levels could be simulated: {}",
+                    notes.join("; ")
+                ),
+            });
+            continue;
+        }
+        let mut factors = Vec::new();
+        for &(k, low) in &lows {
+            let Some(&(_, high)) = highs.iter().find(|(kh, _)| *kh == k) else {
+                continue;
+            };
+            let p = &parameters[k];
+            factors.push(ParameterFactor {
+                kind: p.kind,
+                low: p.low(),
+                nominal: p.nominal(),
+                high: p.high(),
+                low_month_l_m2_day: low,
+                high_month_l_m2_day: high,
+                low_annual_l_m2: annual(&low),
+                high_annual_l_m2: annual(&high),
+            });
         }
         let (worst_month, worst) =
             nominal
@@ -395,6 +420,7 @@ pub fn fit_responses(
             level_l_m2_day: level_y,
             h0_j_m2: h0.clone(),
             factors,
+            notes,
         });
     }
     if responses.is_empty() {

@@ -537,6 +537,8 @@ pub struct VariantUncertainty {
     pub worst_month_l_m2_day: Percentiles,
     /// Output of the still in the worst month of each sample [L day⁻¹].
     pub worst_month_l_day: Percentiles,
+    /// Fitting runs left out (a clearness level, or a parameter then treated as certain).
+    pub notes: Vec<String>,
 }
 
 /// The whole Monte Carlo result.
@@ -738,5 +740,6 @@ fn reduce(r: &VariantResponse, samples: &[SampleFigures], v: usize) -> VariantUn
         mean_l_day: annual_p.scaled(fp / 365.0),
         worst_month_l_m2_day: worst_p,
         worst_month_l_day: worst_p.scaled(fp),
+        notes: r.notes.clone(),
     }
 }
