@@ -38,7 +38,8 @@ fn parse_weights(s: &str) -> Result<Weights, String> {
     reference (linear both ways). The score is the weighted mean, so adding or removing a\n\
     variant never reorders the others.\n\n\
     Examples:\n  stillbench compare designs/demo-coast.toml\n  \
-    stillbench compare designs/demo-coast.toml --weights cost=4,complexity=0 --format csv"
+    stillbench compare designs/demo-coast.toml --weights cost=4,complexity=0 --format csv\n  \
+    stillbench compare designs/demo-coast.toml --samples 1000 --seed 7   (adds P10/P50/P90)"
 )]
 pub struct CompareArgs {
     /// The design file (TOML). Without it, the built-in demo design is compared.
@@ -51,6 +52,14 @@ pub struct CompareArgs {
     /// design's currency. Required (cost and capital) when the design does not count in USD.
     #[arg(long, value_name = "LIST")]
     pub scales: Option<String>,
+    /// Monte Carlo samples for P10/P50/P90 of each variant's yield (as `stillbench
+    /// uncertainty`, same figures for the same seed); 0 = off (the default, so `compare`
+    /// stays a fraction of a second).
+    #[arg(long, value_name = "N", default_value_t = 0)]
+    pub samples: u32,
+    /// Seed of the Monte Carlo (with --samples).
+    #[arg(long, value_name = "S", default_value_t = 1)]
+    pub seed: u64,
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,
@@ -117,6 +126,9 @@ pub struct Report {
     pub pareto_front: Vec<String>,
     /// Variants left out, with why.
     pub skipped: Vec<compare::Skipped>,
+    /// Monte Carlo percentiles, when `--samples` is above 0.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub uncertainty: Option<stillbench::compare::UncertaintyReport>,
 }
 
 /// Build the report from an evaluation.
@@ -142,6 +154,7 @@ pub fn report(
         ranking,
         pareto_front,
         skipped: ev.skipped.clone(),
+        uncertainty: None,
     })
 }
 
@@ -156,7 +169,15 @@ pub fn run(args: &CompareArgs) -> anyhow::Result<()> {
     for s in &ev.skipped {
         eprintln!("note: `{}` is not ranked: {}", s.name, s.reason);
     }
-    let rep = report(&loaded.design.project.title, &ev, &weights, &scales)?;
+    let mut rep = report(&loaded.design.project.title, &ev, &weights, &scales)?;
+    if args.samples > 0 {
+        let opts = compare::UncertaintyOptions {
+            samples: args.samples,
+            seed: args.seed,
+            ..compare::UncertaintyOptions::default()
+        };
+        rep.uncertainty = Some(super::uncertainty::run_with_bar(&loaded, &opts)?);
+    }
     let mut out = std::io::stdout().lock();
     match args.format {
         Format::Text => {
@@ -244,6 +265,10 @@ pub fn write_text(out: &mut impl Write, rep: &Report) -> std::io::Result<()> {
         for s in &rep.skipped {
             writeln!(out, "  {}: {}", s.name, s.reason)?;
         }
+    }
+    if let Some(u) = &rep.uncertainty {
+        writeln!(out)?;
+        super::uncertainty::write_percentiles(out, u)?;
     }
     Ok(())
 }

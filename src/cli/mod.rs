@@ -13,6 +13,7 @@ mod operate;
 mod simulate;
 mod size;
 mod sweep;
+mod uncertainty;
 
 /// Design, simulate and compare solar water stills for one site and the materials a local
 /// workshop can get.
@@ -67,6 +68,9 @@ enum Command {
     /// How many units of each variant meet a daily demand in the worst month, in most
     /// stochastic weather years; capital, land, storage, and rain the covers would catch.
     Size(size::SizeArgs),
+    /// P10/P50/P90 of each variant's annual and worst-month yield over stochastic weather,
+    /// uncertain parameters and model error; parameter table and sensitivity ranking
+    Uncertainty(uncertainty::UncertaintyArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -82,6 +86,7 @@ pub fn main() -> std::process::ExitCode {
         Command::Audit(args) => audit::run(&args),
         Command::Sweep(args) => sweep::run(&args),
         Command::Size(args) => size::run(&args),
+        Command::Uncertainty(args) => uncertainty::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),

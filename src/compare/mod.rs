@@ -7,7 +7,8 @@
 //! user's [`Weights`] against fixed [`Scales`], marks the Pareto front and explains each
 //! place. [`audit::audit`] checks a claimed yield against the site's sunlight.
 //!
-//! Sizing to a demand, parametric sweeps, Monte Carlo uncertainty and sensitivity belong here
+//! Sizing to a demand ([`size`]), parametric sweeps ([`sweep`]), Monte Carlo uncertainty
+//! ([`uncertainty`], over the fitted daily [`response`] model) and [`sensitivity`] live here
 //! too, each in its own module: they take an [`evaluate::Evaluation`] (which keeps the full
 //! simulation and costing) or re-run the pipeline with a changed design value, and feed
 //! their figures back through the same [`rank::Candidate`] table.
@@ -15,12 +16,23 @@
 pub mod audit;
 pub mod evaluate;
 pub mod rank;
+pub mod response;
+pub mod sensitivity;
 pub mod size;
 pub mod sweep;
+pub mod uncertainty;
 
 pub use audit::{Audit, AuditError, Claim, ClaimField, Verdict, audit};
 pub use evaluate::{DesignEvaluation, Evaluation, Skipped, evaluate_design, evaluate_variant};
 pub use rank::{
     BadList, Candidate, Criterion, CriterionValues, Direction, Ranked, Scales, Weights, dominates,
     pareto_front, rank,
+};
+pub use response::{
+    FittedResponses, ResponseCheck, VariantResponse, fit_responses, validate_response,
+};
+pub use sensitivity::{SensitivityBar, SensitivityReport, VariantSensitivity, sensitivity};
+pub use uncertainty::{
+    ParameterKind, Percentiles, UncertainParameter, UncertaintyOptions, UncertaintyReport,
+    VariantUncertainty, default_parameters, run_uncertainty,
 };

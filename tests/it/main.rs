@@ -5,6 +5,7 @@ mod climate;
 mod compare;
 mod compare_size;
 mod compare_sweep;
+mod compare_uncertainty;
 mod design;
 mod economics;
 mod network;
