@@ -5,6 +5,7 @@ use clap::{Parser, Subcommand};
 use stillbench::ExitCode;
 
 mod audit;
+mod calibrate;
 mod check;
 mod climate;
 mod compare;
@@ -67,6 +68,9 @@ enum Command {
     /// How many units of each variant meet a daily demand in the worst month, in most
     /// stochastic weather years; capital, land, storage, and rain the covers would catch.
     Size(size::SizeArgs),
+    /// Fit a variant's calibration factors to a pilot still's measured record (confidence
+    /// intervals, goodness of fit, charts) and write them into a new design file.
+    Calibrate(calibrate::CalibrateArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -82,6 +86,7 @@ pub fn main() -> std::process::ExitCode {
         Command::Audit(args) => audit::run(&args),
         Command::Sweep(args) => sweep::run(&args),
         Command::Size(args) => size::run(&args),
+        Command::Calibrate(args) => calibrate::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),
