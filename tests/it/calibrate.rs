@@ -794,3 +794,59 @@ fn calibrate_command_writes_a_calibrated_design_and_charts() {
     let v: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
     assert_eq!(v["parameters"].as_array().unwrap().len(), 2);
 }
+
+#[test]
+fn student_t_quantile_matches_tables() {
+    // Student t, two-sided 95 % (t₀.₉₇₅): 10 dof 2.228, 30 dof 2.042, 120 dof 1.980 (standard
+    // tables, from memory); the Cornish–Fisher series is good to 1e-3 from 10 dof up.
+    for (dof, table) in [(10, 2.228), (30, 2.042), (120, 1.980)] {
+        let t = calibrate::student_t_975(dof);
+        assert!((t - table).abs() < 1.5e-3, "{dof}: {t}");
+    }
+    assert!(calibrate::student_t_975(0).is_infinite());
+}
+
+#[test]
+fn distillate_alone_cannot_separate_collection_from_transmittance() {
+    // Without temperatures both factors only scale the distillate: the fit must say so.
+    let s = synthetic();
+    let mut rec = noisy(&s, 77, 0.05, 0.3);
+    for h in &mut rec.hours {
+        h.t_brine_c = None;
+        h.t_cover_c = None;
+        h.t_liner_c = None;
+    }
+    let cal = Calibrator::new(
+        &s.fit_design,
+        "pilot",
+        &rec,
+        calibrate::calibration_run_options(),
+    )
+    .unwrap();
+    let r = calibrate::calibrate_with(
+        &cal,
+        &rec,
+        &FitSettings {
+            params: vec![
+                FitParam::DistillateFactor,
+                FitParam::CoverTransmittanceFactor,
+            ],
+            ..FitSettings::default()
+        },
+    )
+    .unwrap();
+    assert!(r.correlation[0][1].abs() > 0.95, "{:?}", r.correlation);
+    assert!(
+        r.warnings
+            .iter()
+            .any(|w| w.contains("not separately identifiable")),
+        "{:?}",
+        r.warnings
+    );
+    // Daily statistics are reported beside the hourly ones.
+    assert!(
+        r.statistics
+            .iter()
+            .any(|st| st.basis == "daily" && st.n >= 12)
+    );
+}
