@@ -850,3 +850,59 @@ fn distillate_alone_cannot_separate_collection_from_transmittance() {
             .any(|st| st.basis == "daily" && st.n >= 12)
     );
 }
+
+#[test]
+fn write_back_adds_a_calibration_table_to_the_right_variant_and_keeps_the_rest() {
+    // The demo design has no calibration table; write factors into its second variant.
+    let report = calibrate::CalibrationReport {
+        variant: "twin-roof".into(),
+        measured_file: "pilot.csv".into(),
+        hours: 0,
+        parameters: vec![calibrate::FittedParameter {
+            param: FitParam::DistillateFactor,
+            name: "distillate_factor".into(),
+            start: 1.0,
+            value: 0.873_456_7,
+            std_error: 0.01,
+            ci_low: 0.85,
+            ci_high: 0.89,
+            bounds: (0.2, 1.5),
+            at_bound: false,
+        }],
+        correlation: vec![vec![1.0]],
+        statistics: Vec::new(),
+        statistics_before: Vec::new(),
+        sigma: Vec::new(),
+        dof: 10,
+        t_quantile: 2.228,
+        model_runs: 0,
+        termination: String::new(),
+        warnings: Vec::new(),
+        data: calibrate::MeasuredSummary::default(),
+        overlay: Vec::new(),
+    };
+    let text = calibrate::calibrated_design_text(
+        design::DEMO_DESIGN,
+        Path::new("demo-coast.toml"),
+        &report,
+        "pilot.csv",
+        "2026-12-02",
+    )
+    .unwrap();
+    assert!(
+        text.contains("# Demo design: an INVENTED village"),
+        "comments kept"
+    );
+    let loaded = design::parse_design_str(&text, Path::new("t.toml"), &designs_dir()).unwrap();
+    let vs = &loaded.design.variants;
+    assert!(vs[0].calibration.is_none());
+    let c = vs[1].calibration.clone().unwrap();
+    // Four significant digits.
+    assert_eq!(c.distillate_factor, Some(0.8735));
+    assert_eq!(c.fitted_on.as_deref(), Some("2026-12-02"));
+    assert!(vs[2..].iter().all(|v| v.calibration.is_none()));
+    // Every other value is as before.
+    let before = design::load_demo().unwrap();
+    assert_eq!(before.design.variants.len(), vs.len());
+    assert_eq!(before.design.site, loaded.design.site);
+}
