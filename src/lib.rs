@@ -10,6 +10,7 @@
 #![deny(missing_docs)]
 #![deny(clippy::float_cmp)]
 
+pub mod calibrate;
 pub mod cautions;
 pub mod climate;
 pub mod compare;

@@ -5,6 +5,7 @@ use clap::{Parser, Subcommand};
 use stillbench::ExitCode;
 
 mod audit;
+mod calibrate;
 mod check;
 mod climate;
 mod compare;
@@ -71,6 +72,9 @@ enum Command {
     /// P10/P50/P90 of each variant's annual and worst-month yield over stochastic weather,
     /// uncertain parameters and model error; parameter table and sensitivity ranking
     Uncertainty(uncertainty::UncertaintyArgs),
+    /// Fit a variant's calibration factors to a pilot still's measured record (confidence
+    /// intervals, goodness of fit, charts) and write them into a new design file.
+    Calibrate(calibrate::CalibrateArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -87,6 +91,7 @@ pub fn main() -> std::process::ExitCode {
         Command::Sweep(args) => sweep::run(&args),
         Command::Size(args) => size::run(&args),
         Command::Uncertainty(args) => uncertainty::run(&args),
+        Command::Calibrate(args) => calibrate::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),

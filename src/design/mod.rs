@@ -14,9 +14,11 @@ use std::fmt;
 use std::path::{Path, PathBuf};
 
 mod alternatives;
+mod calibration;
 mod climate_inputs;
 mod costs;
 mod library;
+mod measured;
 mod operation;
 mod parse;
 mod reader;
@@ -27,12 +29,17 @@ mod summary;
 mod validate;
 
 pub use alternatives::{Alternative, MAX_COST_PER_LITRE, MAX_LIST_ENTRIES};
+pub use calibration::{
+    BASE_LOSS_FACTOR_RANGE, COVER_EMISSIVITY_RANGE, COVER_TRANSMITTANCE_FACTOR_RANGE, Calibration,
+    CalibrationFactors, DISTILLATE_FACTOR_RANGE,
+};
 pub use climate_inputs::EPW_WIND_HEIGHT_M;
 pub use costs::{ComplexityWeights, Costs, LabourRates, PartItems, Substitutes};
 pub use library::{
     Condensate, CoverProps, InsulationProps, Item, Library, LibraryHeader, PlateProps, ROLE_NAMES,
     Role, Stock, SurfaceProps, Unit, WickProps,
 };
+pub use measured::{DistillateCounting, DistillateUnit, MeasuredColumns};
 pub use operation::{
     DEFAULT_BAND_MM, DEFAULT_CONTROL_INTERVAL_S, DEFAULT_DELAY_S, DEFAULT_FLUSH_HOUR,
     DEFAULT_FLUSH_RATIO, DEFAULT_REFILL_HOURS, DEFAULT_VALVE_MAX_L_H, DEFAULT_WETTING_DEPTH_MM,

@@ -128,6 +128,7 @@ pub(crate) fn parse_design(
         validate::variants(&mut r, v, library.as_ref().map(|(l, _)| l));
         let feed_g_kg = site.as_ref().map_or(35.0, |s| s.feed_salinity_g_kg);
         validate::operations(&mut r, v, feed_g_kg);
+        validate::calibrations(&mut r, v);
     }
 
     let mut issues = r.issues;
@@ -464,6 +465,7 @@ fn read_variant(r: &mut Reader<'_>, v: &Spanned<DeValue<'_>>, path: &str) -> Opt
         cover_azimuth_deg: f.cover_azimuth_deg,
         cover: f.cover,
         operation: f.operation,
+        calibration: f.calibration,
         kind,
     })
 }

@@ -350,6 +350,8 @@ pub struct Variant {
     pub kind: VariantKind,
     /// `[variant.operation]`: feed and flush of a basin still (defaults when absent).
     pub operation: Option<super::operation::Operation>,
+    /// `[variant.calibration]`: factors fitted to a pilot still (neutral when absent).
+    pub calibration: Option<super::calibration::Calibration>,
 }
 
 /// The fields every variant has, as serde reads them.
@@ -363,10 +365,12 @@ pub(crate) struct VariantFields {
     pub cover: String,
     #[serde(default)]
     pub operation: Option<super::operation::Operation>,
+    #[serde(default)]
+    pub calibration: Option<super::calibration::Calibration>,
 }
 
 /// The names of [`VariantFields`], plus `kind`.
-pub(crate) const VARIANT_COMMON_FIELDS: [&str; 7] = [
+pub(crate) const VARIANT_COMMON_FIELDS: [&str; 8] = [
     "name",
     "kind",
     "width_m",
@@ -374,6 +378,7 @@ pub(crate) const VARIANT_COMMON_FIELDS: [&str; 7] = [
     "cover_azimuth_deg",
     "cover",
     "operation",
+    "calibration",
 ];
 
 /// Kind-specific data of a variant.

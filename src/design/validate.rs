@@ -1165,6 +1165,17 @@ pub fn basin_of(v: &Variant) -> Option<(f64, f64)> {
     }
 }
 
+/// The `[variant.calibration]` tables: factor ranges and the measured-file mapping.
+pub(crate) fn calibrations(r: &mut Reader<'_>, vs: &[Variant]) {
+    for (i, v) in vs.iter().enumerate() {
+        let Some(c) = &v.calibration else { continue };
+        let p = format!("{}.calibration", spans::index("variant", i));
+        for (field, message) in c.problems() {
+            r.error(&format!("{p}.{field}"), message);
+        }
+    }
+}
+
 /// The `[variant.operation]` tables: ranges, set depth above the wetting depth, controller
 /// stability.
 pub(crate) fn operations(r: &mut Reader<'_>, vs: &[Variant], feed_salinity_g_kg: f64) {

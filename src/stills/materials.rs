@@ -12,6 +12,8 @@ use crate::error::Error;
 pub(crate) struct Materials<'a> {
     variant: &'a str,
     lib: &'a Library,
+    /// `[variant.calibration] cover_emissivity`, which replaces every cover's own.
+    cover_emissivity: Option<f64>,
 }
 
 impl<'a> Materials<'a> {
@@ -20,6 +22,10 @@ impl<'a> Materials<'a> {
         Materials {
             variant: variant.name.as_str(),
             lib,
+            cover_emissivity: variant
+                .calibration
+                .as_ref()
+                .and_then(|c| c.cover_emissivity),
         }
     }
 
@@ -33,12 +39,18 @@ impl<'a> Materials<'a> {
         }
     }
 
-    /// Optical and thermal properties of a cover or glazing.
+    /// Optical and thermal properties of a cover or glazing, with the long-wave emissivity
+    /// replaced by the variant's calibrated `cover_emissivity` when it has one.
     pub(crate) fn cover(&self, part: &str, id: &str) -> Result<CoverProps, Error> {
-        self.lib
+        let mut props = self
+            .lib
             .get(id)
             .and_then(|i| i.cover)
-            .ok_or_else(|| self.missing(part, id))
+            .ok_or_else(|| self.missing(part, id))?;
+        if let Some(e) = self.cover_emissivity {
+            props.emissivity = e;
+        }
+        Ok(props)
     }
 
     /// Surface properties of a liner, paint or absorber.

@@ -22,6 +22,7 @@
 //! [`crate::design::DEFAULT_CONTROL_INTERVAL_S`]); the network's `advance` is called once per
 //! interval, so the energy balance books every interval of the day.
 
+pub mod calibrated;
 pub mod double_slope;
 mod materials;
 pub mod multi_effect;
@@ -45,6 +46,7 @@ use crate::operation::{BasinView, DayLog, MassBalance, Operation, OperationDay, 
 use crate::physics::constants::ZERO_CELSIUS_K;
 use crate::physics::irradiance::PlaneIrradiance;
 use crate::physics::water;
+pub use calibrated::CalibratedModel;
 pub use double_slope::DoubleSlopeStill;
 pub use multi_effect::MultiEffectStill;
 pub use single_slope::SingleSlopeStill;
@@ -598,8 +600,31 @@ pub fn is_modelled(kind: &VariantKind) -> bool {
     )
 }
 
-/// Build the model of a variant, or `None` for a kind not modelled yet.
+/// Build the model of a variant, or `None` for a kind not modelled yet, with the variant's
+/// `[variant.calibration]` factors applied ([`CalibratedModel`]; neutral factors leave the
+/// model exactly as built).
 pub fn build_model(
+    loaded: &LoadedDesign,
+    variant: &Variant,
+    weather: &SiteWeather,
+) -> Result<Option<Box<dyn StillModel>>, Error> {
+    let factors = variant
+        .calibration
+        .as_ref()
+        .map(|c| c.factors())
+        .unwrap_or_default();
+    Ok(build_uncalibrated(loaded, variant, weather)?.map(|m| {
+        if factors.is_neutral() {
+            m
+        } else {
+            Box::new(CalibratedModel::new(m, factors)) as Box<dyn StillModel>
+        }
+    }))
+}
+
+/// The model of a variant as its kind builds it (a calibrated `cover_emissivity` is already
+/// in the cover's properties), before the other calibration factors.
+fn build_uncalibrated(
     loaded: &LoadedDesign,
     variant: &Variant,
     weather: &SiteWeather,

@@ -1,5 +1,6 @@
 //! One integration-test binary (one link step) with a module per area.
 
+mod calibrate;
 mod cli;
 mod climate;
 mod compare;
