@@ -290,7 +290,16 @@ struct StepConsts {
     h0: Vec<f64>,
     /// Liquid enthalpy of the feed (water nodes with a feed) [J kg⁻¹].
     h_feed: Vec<f64>,
+    /// Evaporation cap of a fed wick over this step [kg s⁻¹] (∞: no cap).
+    cap_kg_s: Vec<f64>,
+    /// Half-width of the cap's smoothing [kg s⁻¹].
+    cap_width_kg_s: Vec<f64>,
 }
+
+/// Half-width of a fed wick's evaporation cap as a share of its feed water [-]: the cap then
+/// costs at most 1.25 % of the feed where evaporation and supply are equal, and nothing
+/// outside ±5 % of it (our own choice, no source).
+pub const FED_WICK_CAP_WIDTH_SHARE: f64 = 0.05;
 
 /// The latest converged finite step, for the Newton start of the step that continues it.
 #[derive(Debug, Clone)]
@@ -353,6 +362,8 @@ impl<'n> Solver<'n> {
                 p_ratio: vec![1.0; n],
                 h0: vec![0.0; n],
                 h_feed: vec![0.0; n],
+                cap_kg_s: vec![f64::INFINITY; n],
+                cap_width_kg_s: vec![0.0; n],
             },
             previous: PreviousStep {
                 valid: false,
@@ -426,6 +437,18 @@ impl<'n> Solver<'n> {
             ws.p_ratio[i] = net
                 .water
                 .vapour_pressure_ratio(salinity(m, state.salt_kg[i]));
+            // A fed wick evaporates at most what its feed (less the salt it brings and the
+            // run-off) and its water above half its dry mass supply over the step, so its
+            // water never falls below that floor within a step. The steady state holds the
+            // masses fixed and so has no cap.
+            ws.cap_kg_s[i] = f64::INFINITY;
+            if node.fed_wick && dt_s.is_finite() {
+                let feed = inputs.feed_kg_s[i].max(0.0);
+                let feed_water = feed * (1.0 - inputs.feed_salinity_g_kg[i] / 1000.0).max(0.0);
+                let reserve = (m - state.salt_kg[i] - 0.5 * node.dry_mass_kg) / dt_s;
+                ws.cap_kg_s[i] = (feed_water - inputs.drain_kg_s[i] + reserve).max(0.0);
+                ws.cap_width_kg_s[i] = FED_WICK_CAP_WIDTH_SHARE * feed_water + 1e-12;
+            }
             if node.holds_water {
                 ws.h0[i] = net.water.liquid_enthalpy_j_kg(state.t_k[i]);
                 ws.h_feed[i] = if inputs.feed_kg_s[i] > 0.0 {
@@ -907,7 +930,8 @@ fn enclosure_flows(
         fl.dq_convective_dt_hot * area_m2,
         fl.dq_convective_dt_cold * area_m2,
     );
-    let (q_evap, dqe_w, dqe_c) = if c.wet[w] {
+    let cap = c.cap_kg_s[w];
+    let (mut q_evap, mut dqe_w, mut dqe_c) = if c.wet[w] || cap.is_finite() {
         (
             fl.q_evaporative_w_m2 * area_m2,
             fl.dq_evaporative_dt_hot * area_m2,
@@ -918,9 +942,19 @@ fn enclosure_flows(
     };
     let hfg = water.latent_heat_j_kg(tw);
     let dhfg = water.latent_heat_derivative_j_kg_k(tw);
-    let mdot = q_evap / hfg;
-    let dm_w = dqe_w / hfg - q_evap * dhfg / (hfg * hfg);
-    let dm_c = dqe_c / hfg;
+    let mut mdot = q_evap / hfg;
+    let mut dm_w = dqe_w / hfg - q_evap * dhfg / (hfg * hfg);
+    let mut dm_c = dqe_c / hfg;
+    if cap.is_finite() {
+        // A fed wick: evaporation capped smoothly at its supply (C¹, so no event chatter).
+        let (e, de) = super::models::supply_cap(mdot, cap, c.cap_width_kg_s[w]);
+        mdot = e;
+        dm_w *= de;
+        dm_c *= de;
+        q_evap = e * hfg;
+        dqe_w = dm_w * hfg + e * dhfg;
+        dqe_c = dm_c * hfg;
+    }
     // Reversed flux (cold side warmer): vapour from the condensate film condenses back
     // into the water node; nothing is collected or leaked.
     let (phi, psi) = if mdot >= 0.0 {
