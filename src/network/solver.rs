@@ -434,9 +434,13 @@ impl<'n> Solver<'n> {
             let m = state.brine_kg[i];
             ws.m0[i] = if node.holds_water { m } else { 0.0 };
             ws.wet[i] = node.holds_water && m - state.salt_kg[i] > node.dry_mass_kg;
-            ws.p_ratio[i] = net
-                .water
-                .vapour_pressure_ratio(salinity(m, state.salt_kg[i]));
+            // Only water nodes evaporate (an enclosure's hot end must hold water).
+            ws.p_ratio[i] = if node.holds_water {
+                net.water
+                    .vapour_pressure_ratio(salinity(m, state.salt_kg[i]))
+            } else {
+                1.0
+            };
             // A fed wick evaporates at most what its feed (less the salt it brings and the
             // run-off) and its water above half its dry mass supply over the step, so its
             // water never falls below that floor within a step. The steady state holds the
@@ -760,10 +764,13 @@ fn zero_band(jac: &mut DMatrix<f64>, kl: usize) {
         jac.fill(0.0);
         return;
     }
+    // Column-major storage: column j is `n` entries from j·n. Plain slices avoid building a
+    // view per column in this hot path.
+    let a = jac.as_mut_slice();
     for j in 0..n {
         let lo = j.saturating_sub(kl);
-        let hi = (j + kl).min(n.saturating_sub(1));
-        jac.column_mut(j).rows_range_mut(lo..=hi).fill(0.0);
+        let hi = (j + kl).min(n - 1);
+        a[j * n + lo..=j * n + hi].fill(0.0);
     }
 }
 
@@ -772,36 +779,36 @@ fn zero_band(jac: &mut DMatrix<f64>, kl: usize) {
 /// Outside that region `lu` is never written, so it stays zero from its creation.
 fn copy_band(jac: &DMatrix<f64>, lu: &mut DMatrix<f64>, kl: usize) {
     let n = jac.nrows();
-    if kl + 1 >= n {
+    if kl + 1 >= n || lu.nrows() != n || lu.ncols() != jac.ncols() {
         lu.copy_from(jac);
         return;
     }
+    let (src, dst) = (jac.as_slice(), lu.as_mut_slice());
     for j in 0..n {
         let lo = j.saturating_sub(2 * kl);
-        let hi = (j + kl).min(n.saturating_sub(1));
-        lu.column_mut(j)
-            .rows_range_mut(lo..=hi)
-            .copy_from(&jac.column(j).rows_range(lo..=hi));
+        let hi = (j + kl).min(n - 1);
+        dst[j * n + lo..=j * n + hi].copy_from_slice(&src[j * n + lo..=j * n + hi]);
     }
 }
 
 /// Gaussian elimination with partial pivoting restricted to a band of half-width `kl`
 /// (pivoting widens the upper band to 2·kl). Dense when `kl` ≥ n − 1. Solves in place:
 /// `b` becomes the solution. Returns false when a pivot vanishes.
-fn solve_banded(a: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
+fn solve_banded(m: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
     let n = b.len();
     if n == 0 {
         return true;
     }
+    if m.nrows() != n || m.ncols() != n {
+        return false;
+    }
+    // Column-major: entry (i, j) at i + j·n.
+    let a = m.as_mut_slice();
     // Largest magnitude in the band (the only non-zero entries); a NaN anywhere fails.
     let mut amax = 0.0_f64;
     let mut nan = false;
     for j in 0..n {
-        let col = a.column(j);
-        for v in col
-            .rows_range(j.saturating_sub(kl)..=(j + kl).min(n - 1))
-            .iter()
-        {
+        for v in &a[j * n + j.saturating_sub(kl)..=j * n + (j + kl).min(n - 1)] {
             let v = v.abs();
             nan |= v.is_nan();
             if v > amax {
@@ -817,9 +824,9 @@ fn solve_banded(a: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
         let rmax = (k + kl).min(n - 1);
         let cmax = (k + 2 * kl).min(n - 1);
         let mut p = k;
-        let mut best = a[(k, k)].abs();
+        let mut best = a[k + k * n].abs();
         for i in k + 1..=rmax {
-            let v = a[(i, k)].abs();
+            let v = a[i + k * n].abs();
             if v > best {
                 best = v;
                 p = i;
@@ -830,16 +837,16 @@ fn solve_banded(a: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
         }
         if p != k {
             for j in k..=cmax {
-                a.swap((k, j), (p, j));
+                a.swap(k + j * n, p + j * n);
             }
             b.swap(k, p);
         }
-        let piv = a[(k, k)];
+        let piv = a[k + k * n];
         for i in k + 1..=rmax {
-            let f = a[(i, k)] / piv;
+            let f = a[i + k * n] / piv;
             if f != 0.0 {
                 for j in k + 1..=cmax {
-                    a[(i, j)] -= f * a[(k, j)];
+                    a[i + j * n] -= f * a[k + j * n];
                 }
                 b[i] -= f * b[k];
             }
@@ -848,9 +855,9 @@ fn solve_banded(a: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
     for k in (0..n).rev() {
         let mut s = b[k];
         for j in k + 1..=(k + 2 * kl).min(n - 1) {
-            s -= a[(k, j)] * b[j];
+            s -= a[k + j * n] * b[j];
         }
-        b[k] = s / a[(k, k)];
+        b[k] = s / a[k + k * n];
     }
     true
 }
@@ -1001,6 +1008,9 @@ fn assemble(
 ) {
     let water = net.water.as_ref();
     zero_band(jac, net.bandwidth);
+    // Column-major: entry (i, j) at i + j·nr (plain slice indexing in this hot loop).
+    let nr = jac.nrows();
+    let jm = jac.as_mut_slice();
     for (i, node) in net.nodes.iter().enumerate() {
         let ti = t[i];
         let mut res = -inputs.source_w[i];
@@ -1039,7 +1049,7 @@ fn assemble(
         }
         r[i] = res;
         scale[i] = sc;
-        jac[(i, i)] = diag;
+        jm[i + i * nr] = diag;
     }
     for (l, link) in net.links.iter().enumerate() {
         if let LinkKind::Enclosure {
@@ -1068,10 +1078,10 @@ fn assemble(
             r[cn] -= f.g_c;
             scale[w] += f.g_w.abs();
             scale[cn] += f.g_c.abs();
-            jac[(w, w)] -= f.dgw_dtw;
-            jac[(w, cn)] -= f.dgw_dtc;
-            jac[(cn, w)] -= f.dgc_dtw;
-            jac[(cn, cn)] -= f.dgc_dtc;
+            jm[w + w * nr] -= f.dgw_dtw;
+            jm[w + cn * nr] -= f.dgw_dtc;
+            jm[cn + w * nr] -= f.dgc_dtw;
+            jm[cn + cn * nr] -= f.dgc_dtc;
             flows[l] = f;
             continue;
         }
@@ -1081,17 +1091,17 @@ fn assemble(
         if let End::Node(a) = link.a {
             r[a.0] += q;
             scale[a.0] += q.abs();
-            jac[(a.0, a.0)] += dqa;
+            jm[a.0 + a.0 * nr] += dqa;
             if let End::Node(b) = link.b {
-                jac[(a.0, b.0)] += dqb;
+                jm[a.0 + b.0 * nr] += dqb;
             }
         }
         if let End::Node(b) = link.b {
             r[b.0] -= q;
             scale[b.0] += q.abs();
-            jac[(b.0, b.0)] -= dqb;
+            jm[b.0 + b.0 * nr] -= dqb;
             if let End::Node(a) = link.a {
-                jac[(b.0, a.0)] -= dqa;
+                jm[b.0 + a.0 * nr] -= dqa;
             }
         }
     }
