@@ -250,7 +250,9 @@ impl AirSink {
 /// separate link.
 ///
 /// * `gap_m` — gap width δ \[m\]; `total_pressure_pa` — P \[Pa\]
-/// * `conductivity_w_m_k` — humid-air conductivity k_air [W m⁻¹ K⁻¹], held fixed
+/// * `conductivity_w_m_k` — conductivity across the gap [W m⁻¹ K⁻¹], held fixed: the
+///   humid air's k_air, plus the spacers' conductivity times their share of the area where
+///   the still's spacers bridge the gap
 ///
 /// *Notes*: the derivative of D with T̄ (D ∝ T̄^2.072) is added to the Stefan derivatives,
 /// which hold D fixed. The gap is narrow enough that the air is still (Rayleigh number below
@@ -263,7 +265,7 @@ pub struct DiffusionGap {
     pub gap_m: f64,
     /// Total pressure P \[Pa\].
     pub total_pressure_pa: f64,
-    /// Air conductivity [W m⁻¹ K⁻¹].
+    /// Conductivity across the gap: air, plus area-weighted spacers [W m⁻¹ K⁻¹].
     pub conductivity_w_m_k: f64,
 }
 
@@ -390,7 +392,10 @@ impl MultiEffectStill {
         let gap_model = Arc::new(DiffusionGap {
             gap_m,
             total_pressure_pa: pressure_pa,
-            conductivity_w_m_k: k_air,
+            // The spacers bridge the gap in parallel with the air: one conduction term,
+            // (k_air + share·k_spacer)/δ per m² of stage, instead of a link of their own
+            // (the same heat flow, one link fewer per stage in the solver's loop).
+            conductivity_w_m_k: k_air + SPACER_AREA_SHARE * SPACER_CONDUCTIVITY_W_M_K,
         });
         let contact = 1.0 / (plate_t_m / plate.conductivity_w_m_k + 1.0 / WICK_CONTACT_W_M2_K);
 
@@ -474,13 +479,6 @@ impl MultiEffectStill {
                 wick,
                 plate_n,
                 area * effective_emissivity_parallel(cloth.emissivity, plate.emissivity),
-                LossPath::Internal,
-            );
-            b.conductance(
-                &format!("stage {i} spacers"),
-                wick,
-                plate_n,
-                SPACER_AREA_SHARE * area * SPACER_CONDUCTIVITY_W_M_K / gap_m,
                 LossPath::Internal,
             );
             b.conductance(
