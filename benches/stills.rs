@@ -3,7 +3,8 @@
 //! the default accuracy (the one that passes the 1 % step-refinement test).
 //!
 //! Run with `cargo bench --bench stills`. Targets: single-slope step under 2 µs and year
-//! under 100 ms (issue 4); a 10-stage multi-effect step under 10 µs (issue 5).
+//! under 100 ms (issue 4); a 10-stage multi-effect step under 10 µs (issue 5); a stochastic
+//! year of the 4-stage multi-effect still within ~3× of its average-day year (issue 5).
 
 use stillbench::climate::{SkyModel, WeatherSeries, WeatherSource};
 use stillbench::design;
@@ -146,6 +147,35 @@ fn step(bencher: divan::Bencher, kind: &str) {
 #[divan::bench(args = ["single-slope", "double-slope", "wick", "stepped", "multi-effect"], sample_count = 10)]
 fn year(bencher: divan::Bencher, kind: &str) {
     bench_year(bencher, demo_of_kind(kind));
+}
+
+/// One stochastic year (seed 1, year 0 of the site's weather generator, run hour by hour on
+/// the weather-file path as sizing does) of the demo's 4-stage multi-effect still; compare
+/// with `year(multi-effect)`, the average-day year (target: within ~3×).
+#[divan::bench(sample_count = 10)]
+fn year_stochastic(bencher: divan::Bencher) {
+    let (loaded, base) = demo_of_kind("multi-effect");
+    let model = stillbench::compare::size::weather_model(&loaded).expect("monthly climate");
+    let weather = SiteWeather {
+        series: model.year(1, 0),
+        average_days: false,
+        ..base.clone()
+    };
+    let v = &loaded.design.variants[0];
+    let still = stills::build_model(&loaded, v, &weather)
+        .expect("builds")
+        .expect("the kind is modelled");
+    bencher.bench_local(|| {
+        let r = stills::run_model(
+            still.as_ref(),
+            &v.name,
+            v.kind.name(),
+            &weather,
+            &RunOptions::default(),
+        )
+        .expect("a year runs");
+        divan::black_box(r.annual_l)
+    });
 }
 
 #[divan::bench]

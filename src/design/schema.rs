@@ -789,7 +789,9 @@ impl Stepped {
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Sink {
-    /// Finned plate in air; default coefficient 25 W m⁻² K⁻¹.
+    /// Finned (or plain) plate in still air; without a set coefficient the model computes it
+    /// from the fin fields (`fin_height_mm`, `fin_spacing_mm`, `fin_thickness_mm`,
+    /// `sink_emissivity`), hour by hour.
     AirFins,
     /// Plate in contact with a water body; default coefficient 200 W m⁻² K⁻¹.
     WaterBody,
@@ -804,8 +806,12 @@ impl Sink {
         }
     }
 
-    /// Default heat-transfer coefficient from the last plate to the sink, per m² of plate
-    /// [W m⁻² K⁻¹].
+    /// Nominal heat-transfer coefficient from the last plate to the sink, per m² of plate
+    /// [W m⁻² K⁻¹]. The water body's is the model's default; for air fins the model computes
+    /// the coefficient from the fin geometry instead
+    /// (`crate::stills::multi_effect::AirSink::coefficient`, ≈ 54 at the default fins with
+    /// the plate 10 K above 30 °C air), and this hand estimate is only a nominal figure for
+    /// summaries.
     ///
     /// *Air fins, 25*: a well-finned plate (fins ≈ 50 mm deep at ≈ 10 mm pitch) in still
     /// air. Hand estimate (from memory, Incropera et al., *Fundamentals of Heat and Mass
@@ -838,6 +844,15 @@ fn default_me_feed() -> f64 {
 fn default_me_glazing_gap() -> f64 {
     20.0
 }
+fn default_fin_height() -> f64 {
+    50.0
+}
+fn default_fin_spacing() -> f64 {
+    10.0
+}
+fn default_fin_thickness() -> f64 {
+    1.0
+}
 
 /// A multi-effect diffusion still: glazing over an absorber, then a stack of stages.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -864,6 +879,20 @@ pub struct MultiEffect {
     /// Air gap between the absorber and the glazing \[mm\], [5, 100]; default 20.
     #[serde(default = "default_me_glazing_gap")]
     pub glazing_gap_mm: f64,
+    /// Air sink: height of the straight fins under the last plate \[mm\], [0, 200]; 0 is a
+    /// plain plate; default 50.
+    #[serde(default = "default_fin_height")]
+    pub fin_height_mm: f64,
+    /// Air sink: clear spacing between neighbouring fins \[mm\], [3, 100]; default 10.
+    #[serde(default = "default_fin_spacing")]
+    pub fin_spacing_mm: f64,
+    /// Air sink: fin thickness \[mm\], [0.3, 10]; default 1. Fins are of the plate's metal.
+    #[serde(default = "default_fin_thickness")]
+    pub fin_thickness_mm: f64,
+    /// Air sink: long-wave emissivity of the sink surface [-], [0.02, 1]; default the plate
+    /// material's.
+    #[serde(default)]
+    pub sink_emissivity: Option<f64>,
     /// Feed per stage and m² of wick [L h⁻¹ m⁻²], [0, 20]; default 0.5.
     #[serde(default = "default_me_feed")]
     pub feed_l_h_m2: f64,
@@ -876,7 +905,8 @@ pub struct MultiEffect {
 }
 
 impl MultiEffect {
-    /// The sink coefficient used [W m⁻² K⁻¹].
+    /// The sink coefficient set in the design, or the sink kind's nominal one
+    /// [W m⁻² K⁻¹] (an air sink without a set coefficient is computed from its fins).
     pub fn sink_coefficient(&self) -> f64 {
         self.sink_coefficient_w_m2_k
             .unwrap_or_else(|| self.sink.default_coefficient_w_m2_k())

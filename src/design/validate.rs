@@ -880,6 +880,38 @@ pub(crate) fn variants(r: &mut Reader<'_>, vs: &[Variant], lib: Option<&Library>
                 );
                 range(
                     r,
+                    &format!("{p}.fin_height_mm"),
+                    k.fin_height_mm,
+                    B::In(0.0),
+                    B::In(200.0),
+                    "mm",
+                );
+                range(
+                    r,
+                    &format!("{p}.fin_spacing_mm"),
+                    k.fin_spacing_mm,
+                    B::In(3.0),
+                    B::In(100.0),
+                    "mm",
+                );
+                range(
+                    r,
+                    &format!("{p}.fin_thickness_mm"),
+                    k.fin_thickness_mm,
+                    B::In(0.3),
+                    B::In(10.0),
+                    "mm",
+                );
+                opt_range(
+                    r,
+                    &format!("{p}.sink_emissivity"),
+                    k.sink_emissivity,
+                    B::In(0.02),
+                    B::In(1.0),
+                    "-",
+                );
+                range(
+                    r,
                     &format!("{p}.feed_l_h_m2"),
                     k.feed_l_h_m2,
                     B::In(0.0),

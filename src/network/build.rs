@@ -168,6 +168,11 @@ pub struct Node {
     /// When the water in the node (brine less its salt) is at or below this, the node counts
     /// as dry and stops evaporating [kg].
     pub dry_mass_kg: f64,
+    /// A continuously fed wick: its evaporation is capped smoothly at the water the feed
+    /// and the cloth's reserve can supply over a step ([`crate::network::supply_cap`]),
+    /// so a wick fed below its evaporation sits at a partly dry balance instead of drying
+    /// out and re-wetting step after step.
+    pub fed_wick: bool,
 }
 
 /// Why a network could not be built.
@@ -305,6 +310,7 @@ impl NetworkBuilder {
             capacity_j_k,
             holds_water: false,
             dry_mass_kg: 0.0,
+            fed_wick: false,
         });
         NodeId(self.nodes.len() - 1)
     }
@@ -318,8 +324,21 @@ impl NetworkBuilder {
             capacity_j_k,
             holds_water: true,
             dry_mass_kg,
+            fed_wick: false,
         });
         NodeId(self.nodes.len() - 1)
+    }
+
+    /// Add a continuously fed wick: a water node (as [`Self::water_node`]) whose evaporation
+    /// is capped smoothly at the water its feed and its reserve above half of `dry_mass_kg`
+    /// can supply within a step, instead of stopping at a dry-out event. Below `dry_mass_kg`
+    /// it still counts as dry (for the dry hours), but keeps evaporating what the feed brings.
+    pub fn fed_wick_node(&mut self, name: &str, capacity_j_k: f64, dry_mass_kg: f64) -> NodeId {
+        let id = self.water_node(name, capacity_j_k, dry_mass_kg);
+        if let Some(n) = self.nodes.last_mut() {
+            n.fed_wick = true;
+        }
+        id
     }
 
     /// Add a boundary (temperature given each step).
@@ -453,6 +472,7 @@ impl NetworkBuilder {
         let n_nodes = self.nodes.len();
         let n_bound = self.boundaries.len();
         let mut bandwidth = 0;
+        let mut wick_enclosures = vec![0u32; n_nodes];
         for l in &self.links {
             let bad = |why: &str| NetworkError::BadEnds {
                 link: l.name.clone(),
@@ -478,6 +498,16 @@ impl NetworkBuilder {
                     bandwidth = bandwidth.max(x.abs_diff(y));
                 }
                 _ => {}
+            }
+            // A fed wick's supply cap is per node, so it may evaporate through one
+            // enclosure only (a second would spend the same supply twice).
+            if let (LinkKind::Enclosure { .. }, End::Node(NodeId(x))) = (&l.kind, l.a)
+                && self.nodes[x].fed_wick
+            {
+                wick_enclosures[x] += 1;
+                if wick_enclosures[x] > 1 {
+                    return Err(bad("a fed wick may evaporate through one enclosure only"));
+                }
             }
             match &l.kind {
                 LinkKind::Conductance { ua_w_k } => {

@@ -59,10 +59,11 @@ pub use drive::{AdvanceError, AdvanceSummary, Simulation, StepControl};
 pub use models::{
     ConductanceModel, CorrelationEnclosure, DUNKLE_LEWIS_FACTOR_K_PA, EnclosureFlux,
     EnclosureModel, FixedCoefficientEnclosure, LinkFlow, PowerLawConductance, SALT_SATURATION_G_KG,
-    SeawaterProperties, SimpleWater, WaterProperties,
+    SeawaterProperties, SimpleWater, WaterProperties, supply_cap,
 };
 pub use solver::{
-    FailReason, LinkRecord, NodeRecord, Solver, SolverSettings, StepEvent, StepOutcome, StepRecord,
+    FED_WICK_CAP_WIDTH_SHARE, FailReason, LinkRecord, NodeRecord, Solver, SolverSettings,
+    StepEvent, StepOutcome, StepRecord,
 };
 pub use state::{Inputs, State, TEMPERATURE_RANGE_K};
 pub(crate) use state::{crust_kg, dissolved_salinity};

@@ -154,6 +154,35 @@ impl EnclosureModel for FixedCoefficientEnclosure {
     }
 }
 
+/// Evaporation `potential_kg_s` capped smoothly at `cap_kg_s`, with its derivative with
+/// respect to the potential: (E [kg s⁻¹], dE/d potential [-]).
+///
+/// E = a − φ(a − b), with a the potential, b the cap and φ a C¹ ramp of half-width w:
+/// φ(x) = 0 for x ≤ −w, (x + w)²/(4w) for |x| < w, x for x ≥ w. Our own construction (a
+/// quadratically smoothed min, no source). So E = a exactly below b − w, E = b exactly above
+/// b + w, E ≤ b everywhere (the largest shortfall is w/4, at a = b), and E and dE/da are
+/// continuous — there is no kink for Newton to chatter on.
+///
+/// * `potential_kg_s` — what the surface would evaporate if fully wet [kg s⁻¹]
+/// * `cap_kg_s` — the supply b [kg s⁻¹], ≥ 0
+/// * `width_kg_s` — the half-width w of the smoothing [kg s⁻¹], > 0
+///
+/// *Notes*: the cap and the width are constants of a step, so only dE/da enters the
+/// Jacobian. A width of zero or less gives the hard minimum.
+pub fn supply_cap(potential_kg_s: f64, cap_kg_s: f64, width_kg_s: f64) -> (f64, f64) {
+    let x = potential_kg_s - cap_kg_s;
+    let w = width_kg_s;
+    if x <= -w {
+        (potential_kg_s, 1.0)
+    } else if x >= w {
+        (cap_kg_s, 0.0)
+    } else {
+        let phi = (x + w) * (x + w) / (4.0 * w);
+        let dphi = (x + w) / (2.0 * w);
+        (potential_kg_s - phi, 1.0 - dphi)
+    }
+}
+
 /// Water and brine properties used by the network's mass-carrying nodes and links.
 ///
 /// The same functions are used by the solver and by the energy balance, so the balance
@@ -343,6 +372,25 @@ mod tests {
         for (t_c, h_kj) in [(50.0, 2381.95), (25.0, 2441.68)] {
             let h = w.latent_heat_j_kg(273.15 + t_c) / 1e3;
             assert!((h / h_kj - 1.0).abs() < 1e-3, "{t_c} °C: {h}");
+        }
+    }
+
+    #[test]
+    fn supply_cap_is_smooth_and_never_above_the_cap() {
+        // Our own construction: exact outside the band, at most w/4 below the smaller of the
+        // two inside it, derivative equal to a difference quotient (1e-6, round-off of the
+        // quotient).
+        let (b, w) = (2.0, 0.2);
+        assert!((supply_cap(1.0, b, w).0 - 1.0).abs() < 1e-15);
+        assert!((supply_cap(3.0, b, w).0 - b).abs() < 1e-15);
+        assert!((supply_cap(b, b, w).0 - (b - w / 4.0)).abs() < 1e-12);
+        for i in 0..=400 {
+            let a = 1.5 + f64::from(i) * 0.0025;
+            let (e, de) = supply_cap(a, b, w);
+            assert!(e <= b + 1e-15 && e <= a + 1e-15 && e >= a.min(b) - w / 4.0 - 1e-12);
+            let h = 1e-6;
+            let fd = (supply_cap(a + h, b, w).0 - supply_cap(a - h, b, w).0) / (2.0 * h);
+            assert!((de - fd).abs() < 1e-6, "{a}: {de} vs {fd}");
         }
     }
 

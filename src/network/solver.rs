@@ -290,7 +290,16 @@ struct StepConsts {
     h0: Vec<f64>,
     /// Liquid enthalpy of the feed (water nodes with a feed) [J kg⁻¹].
     h_feed: Vec<f64>,
+    /// Evaporation cap of a fed wick over this step [kg s⁻¹] (∞: no cap).
+    cap_kg_s: Vec<f64>,
+    /// Half-width of the cap's smoothing [kg s⁻¹].
+    cap_width_kg_s: Vec<f64>,
 }
+
+/// Half-width of a fed wick's evaporation cap as a share of its feed water [-]: the cap then
+/// costs at most 1.25 % of the feed where evaporation and supply are equal, and nothing
+/// outside ±5 % of it (our own choice, no source).
+pub const FED_WICK_CAP_WIDTH_SHARE: f64 = 0.05;
 
 /// The latest converged finite step, for the Newton start of the step that continues it.
 #[derive(Debug, Clone)]
@@ -353,6 +362,8 @@ impl<'n> Solver<'n> {
                 p_ratio: vec![1.0; n],
                 h0: vec![0.0; n],
                 h_feed: vec![0.0; n],
+                cap_kg_s: vec![f64::INFINITY; n],
+                cap_width_kg_s: vec![0.0; n],
             },
             previous: PreviousStep {
                 valid: false,
@@ -423,9 +434,25 @@ impl<'n> Solver<'n> {
             let m = state.brine_kg[i];
             ws.m0[i] = if node.holds_water { m } else { 0.0 };
             ws.wet[i] = node.holds_water && m - state.salt_kg[i] > node.dry_mass_kg;
-            ws.p_ratio[i] = net
-                .water
-                .vapour_pressure_ratio(salinity(m, state.salt_kg[i]));
+            // Only water nodes evaporate (an enclosure's hot end must hold water).
+            ws.p_ratio[i] = if node.holds_water {
+                net.water
+                    .vapour_pressure_ratio(salinity(m, state.salt_kg[i]))
+            } else {
+                1.0
+            };
+            // A fed wick evaporates at most what its feed (less the salt it brings and the
+            // run-off) and its water above half its dry mass supply over the step, so its
+            // water never falls below that floor within a step. The steady state holds the
+            // masses fixed and so has no cap.
+            ws.cap_kg_s[i] = f64::INFINITY;
+            if node.fed_wick && dt_s.is_finite() {
+                let feed = inputs.feed_kg_s[i].max(0.0);
+                let feed_water = feed * (1.0 - inputs.feed_salinity_g_kg[i] / 1000.0).max(0.0);
+                let reserve = (m - state.salt_kg[i] - 0.5 * node.dry_mass_kg) / dt_s;
+                ws.cap_kg_s[i] = (feed_water - inputs.drain_kg_s[i] + reserve).max(0.0);
+                ws.cap_width_kg_s[i] = FED_WICK_CAP_WIDTH_SHARE * feed_water + 1e-12;
+            }
             if node.holds_water {
                 ws.h0[i] = net.water.liquid_enthalpy_j_kg(state.t_k[i]);
                 ws.h_feed[i] = if inputs.feed_kg_s[i] > 0.0 {
@@ -737,10 +764,13 @@ fn zero_band(jac: &mut DMatrix<f64>, kl: usize) {
         jac.fill(0.0);
         return;
     }
+    // Column-major storage: column j is `n` entries from j·n. Plain slices avoid building a
+    // view per column in this hot path.
+    let a = jac.as_mut_slice();
     for j in 0..n {
         let lo = j.saturating_sub(kl);
-        let hi = (j + kl).min(n.saturating_sub(1));
-        jac.column_mut(j).rows_range_mut(lo..=hi).fill(0.0);
+        let hi = (j + kl).min(n - 1);
+        a[j * n + lo..=j * n + hi].fill(0.0);
     }
 }
 
@@ -749,36 +779,36 @@ fn zero_band(jac: &mut DMatrix<f64>, kl: usize) {
 /// Outside that region `lu` is never written, so it stays zero from its creation.
 fn copy_band(jac: &DMatrix<f64>, lu: &mut DMatrix<f64>, kl: usize) {
     let n = jac.nrows();
-    if kl + 1 >= n {
+    if kl + 1 >= n || lu.nrows() != n || lu.ncols() != jac.ncols() {
         lu.copy_from(jac);
         return;
     }
+    let (src, dst) = (jac.as_slice(), lu.as_mut_slice());
     for j in 0..n {
         let lo = j.saturating_sub(2 * kl);
-        let hi = (j + kl).min(n.saturating_sub(1));
-        lu.column_mut(j)
-            .rows_range_mut(lo..=hi)
-            .copy_from(&jac.column(j).rows_range(lo..=hi));
+        let hi = (j + kl).min(n - 1);
+        dst[j * n + lo..=j * n + hi].copy_from_slice(&src[j * n + lo..=j * n + hi]);
     }
 }
 
 /// Gaussian elimination with partial pivoting restricted to a band of half-width `kl`
 /// (pivoting widens the upper band to 2·kl). Dense when `kl` ≥ n − 1. Solves in place:
 /// `b` becomes the solution. Returns false when a pivot vanishes.
-fn solve_banded(a: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
+fn solve_banded(m: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
     let n = b.len();
     if n == 0 {
         return true;
     }
+    if m.nrows() != n || m.ncols() != n {
+        return false;
+    }
+    // Column-major: entry (i, j) at i + j·n.
+    let a = m.as_mut_slice();
     // Largest magnitude in the band (the only non-zero entries); a NaN anywhere fails.
     let mut amax = 0.0_f64;
     let mut nan = false;
     for j in 0..n {
-        let col = a.column(j);
-        for v in col
-            .rows_range(j.saturating_sub(kl)..=(j + kl).min(n - 1))
-            .iter()
-        {
+        for v in &a[j * n + j.saturating_sub(kl)..=j * n + (j + kl).min(n - 1)] {
             let v = v.abs();
             nan |= v.is_nan();
             if v > amax {
@@ -794,9 +824,9 @@ fn solve_banded(a: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
         let rmax = (k + kl).min(n - 1);
         let cmax = (k + 2 * kl).min(n - 1);
         let mut p = k;
-        let mut best = a[(k, k)].abs();
+        let mut best = a[k + k * n].abs();
         for i in k + 1..=rmax {
-            let v = a[(i, k)].abs();
+            let v = a[i + k * n].abs();
             if v > best {
                 best = v;
                 p = i;
@@ -807,16 +837,16 @@ fn solve_banded(a: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
         }
         if p != k {
             for j in k..=cmax {
-                a.swap((k, j), (p, j));
+                a.swap(k + j * n, p + j * n);
             }
             b.swap(k, p);
         }
-        let piv = a[(k, k)];
+        let piv = a[k + k * n];
         for i in k + 1..=rmax {
-            let f = a[(i, k)] / piv;
+            let f = a[i + k * n] / piv;
             if f != 0.0 {
                 for j in k + 1..=cmax {
-                    a[(i, j)] -= f * a[(k, j)];
+                    a[i + j * n] -= f * a[k + j * n];
                 }
                 b[i] -= f * b[k];
             }
@@ -825,9 +855,9 @@ fn solve_banded(a: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
     for k in (0..n).rev() {
         let mut s = b[k];
         for j in k + 1..=(k + 2 * kl).min(n - 1) {
-            s -= a[(k, j)] * b[j];
+            s -= a[k + j * n] * b[j];
         }
-        b[k] = s / a[(k, k)];
+        b[k] = s / a[k + k * n];
     }
     true
 }
@@ -907,7 +937,8 @@ fn enclosure_flows(
         fl.dq_convective_dt_hot * area_m2,
         fl.dq_convective_dt_cold * area_m2,
     );
-    let (q_evap, dqe_w, dqe_c) = if c.wet[w] {
+    let cap = c.cap_kg_s[w];
+    let (mut q_evap, mut dqe_w, mut dqe_c) = if c.wet[w] || cap.is_finite() {
         (
             fl.q_evaporative_w_m2 * area_m2,
             fl.dq_evaporative_dt_hot * area_m2,
@@ -918,9 +949,19 @@ fn enclosure_flows(
     };
     let hfg = water.latent_heat_j_kg(tw);
     let dhfg = water.latent_heat_derivative_j_kg_k(tw);
-    let mdot = q_evap / hfg;
-    let dm_w = dqe_w / hfg - q_evap * dhfg / (hfg * hfg);
-    let dm_c = dqe_c / hfg;
+    let mut mdot = q_evap / hfg;
+    let mut dm_w = dqe_w / hfg - q_evap * dhfg / (hfg * hfg);
+    let mut dm_c = dqe_c / hfg;
+    if cap.is_finite() {
+        // A fed wick: evaporation capped smoothly at its supply (C¹, so no event chatter).
+        let (e, de) = super::models::supply_cap(mdot, cap, c.cap_width_kg_s[w]);
+        mdot = e;
+        dm_w *= de;
+        dm_c *= de;
+        q_evap = e * hfg;
+        dqe_w = dm_w * hfg + e * dhfg;
+        dqe_c = dm_c * hfg;
+    }
     // Reversed flux (cold side warmer): vapour from the condensate film condenses back
     // into the water node; nothing is collected or leaked.
     let (phi, psi) = if mdot >= 0.0 {
@@ -967,6 +1008,9 @@ fn assemble(
 ) {
     let water = net.water.as_ref();
     zero_band(jac, net.bandwidth);
+    // Column-major: entry (i, j) at i + j·nr (plain slice indexing in this hot loop).
+    let nr = jac.nrows();
+    let jm = jac.as_mut_slice();
     for (i, node) in net.nodes.iter().enumerate() {
         let ti = t[i];
         let mut res = -inputs.source_w[i];
@@ -1005,7 +1049,7 @@ fn assemble(
         }
         r[i] = res;
         scale[i] = sc;
-        jac[(i, i)] = diag;
+        jm[i + i * nr] = diag;
     }
     for (l, link) in net.links.iter().enumerate() {
         if let LinkKind::Enclosure {
@@ -1034,10 +1078,10 @@ fn assemble(
             r[cn] -= f.g_c;
             scale[w] += f.g_w.abs();
             scale[cn] += f.g_c.abs();
-            jac[(w, w)] -= f.dgw_dtw;
-            jac[(w, cn)] -= f.dgw_dtc;
-            jac[(cn, w)] -= f.dgc_dtw;
-            jac[(cn, cn)] -= f.dgc_dtc;
+            jm[w + w * nr] -= f.dgw_dtw;
+            jm[w + cn * nr] -= f.dgw_dtc;
+            jm[cn + w * nr] -= f.dgc_dtw;
+            jm[cn + cn * nr] -= f.dgc_dtc;
             flows[l] = f;
             continue;
         }
@@ -1047,17 +1091,17 @@ fn assemble(
         if let End::Node(a) = link.a {
             r[a.0] += q;
             scale[a.0] += q.abs();
-            jac[(a.0, a.0)] += dqa;
+            jm[a.0 + a.0 * nr] += dqa;
             if let End::Node(b) = link.b {
-                jac[(a.0, b.0)] += dqb;
+                jm[a.0 + b.0 * nr] += dqb;
             }
         }
         if let End::Node(b) = link.b {
             r[b.0] -= q;
             scale[b.0] += q.abs();
-            jac[(b.0, b.0)] -= dqb;
+            jm[b.0 + b.0 * nr] -= dqb;
             if let End::Node(a) = link.a {
-                jac[(b.0, a.0)] -= dqa;
+                jm[b.0 + a.0 * nr] -= dqa;
             }
         }
     }

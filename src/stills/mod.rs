@@ -298,6 +298,9 @@ pub enum KindDetails {
         stage_max_c: Vec<f64>,
         /// Distillate of each stage per m² footprint [L m⁻² day⁻¹], first stage first.
         stage_l_m2_day: Vec<f64>,
+        /// Share of the hours in which each stage's wick was dry at some moment (its
+        /// evaporation held to its feed) [-], first stage first.
+        stage_dry_hour_fraction: Vec<f64>,
         /// Distillate × latent heat ÷ sunlight on the aperture [-] (DESIGN.md).
         solar_to_vapour_efficiency: f64,
         /// Distillate × latent heat ÷ heat delivered to the first stage [-] (DESIGN.md).

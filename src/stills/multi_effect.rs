@@ -8,7 +8,12 @@
 //! and the spacers bridge the gap. Each condensing plate heats the next stage's wick; the
 //! last plate rejects heat to the sink the design sets (air through fins, or a water body
 //! the still floats on). Each stage wick is fed at the feed temperature and its run-off
-//! drains warm ([`super::wick::run_off_kg_s`]). The edges of every stage lose heat through
+//! drains warm ([`super::wick::run_off_kg_s`]). A stage wick is a fed wick
+//! ([`NetworkBuilder::fed_wick_node`]): when its evaporation would outrun its feed, the
+//! network caps the evaporation smoothly at the supply ([`crate::network::supply_cap`]) and
+//! the cloth sits partly dry, rather than drying out and re-wetting step after step (which
+//! once cost ~270 solver steps per clear hour in a stochastic year); the share of hours each
+//! stage was dry is reported. The edges of every stage lose heat through
 //! the side insulation and frame; the absorber loses heat through the glazing.
 //!
 //! Node order: glazing, absorber, then wick and plate of stage 1, 2, …, N. Every link joins
@@ -17,17 +22,17 @@
 //!
 //! What the sink does. The stack passes the heat the losses leave down to the sink, so the
 //! last plate sits q/h_sink above the sink temperature. Under one sun a 10-stage stack of
-//! 0.25 m delivers only ≈ 190–240 W m⁻² to the sink (the glazing takes ≈ 330 and the edges
-//! ≈ 210 of the ≈ 800 absorbed), so the rise is ≈ 7.5 K with fins in air (25 W m⁻² K⁻¹) and
-//! ≈ 1 K in water (200), not tens of kelvin; the air is also a few kelvin warmer than a water
-//! body by day. The stack does not ride up rigidly: a diffusion gap passes latent heat in
-//! proportion to the slope of the saturation pressure, which roughly doubles every 12 K, so
-//! the coldest stages hold most of the stack's resistance (≈ 40 W m⁻² K⁻¹ per gap at 30 °C
-//! against ≈ 250 at 65 °C for a 3 mm gap). Warming the bottom lowers that resistance, and the
-//! absorber rises by a small fraction of the last plate's rise; the glazing loss, which
-//! follows the absorber, hardly grows. What the air sink costs is the extra edge, frame and
-//! warm-drain heat of the warmer lower stages: ≈ 4.5 % with good fins and ≈ 12.5 % with a
-//! plain plate (≈ 8 W m⁻² K⁻¹) for a 10-stage stack of 0.25 m under one sun. The run's figures go into the result
+//! 0.25 m delivers only ≈ 190–240 W m⁻² to the sink (the glazing and the edges take most of
+//! the ≈ 800 absorbed). A water body (200 W m⁻² K⁻¹) holds the last plate within ≈ 1 K; an
+//! air sink is computed from its geometry ([`AirSink`]: free convection from fins or a plain
+//! plate, fin efficiency, long-wave radiation), ≈ 54 W m⁻² K⁻¹ for the default fins and ≈ 3
+//! for a bare plain plate. The stack does not ride up rigidly: a diffusion gap passes latent
+//! heat in proportion to the slope of the saturation pressure, which roughly doubles every
+//! 12 K, so the coldest stages hold most of the stack's resistance, and the absorber rises by
+//! a fraction of the last plate's rise. With fins the last plate rises ≈ 6–7 K and the stack
+//! loses ≈ 2.5 %; a plain plate cannot shed the heat without rising ≈ 20 K and more, the
+//! whole stack rides up, and edge, frame, glazing and warm-drain losses take ≈ 20 % of the
+//! distillate (steady, Chiavazzo-like stack). The run's figures go into the result
 //! ([`KindDetails::MultiEffect`]: sink heat, day-mean rise, absorber and last-plate peaks and
 //! a note in words).
 
@@ -48,7 +53,9 @@ use crate::network::{
     BoundaryId, EnclosureFlux, EnclosureModel, Inputs, LinkId, LossPath, Network, NetworkBuilder,
     NetworkError, NodeId, State,
 };
-use crate::physics::constants::{GAS_CONSTANT_J_MOL_K, MOLAR_MASS_AIR_KG_MOL, ZERO_CELSIUS_K};
+use crate::physics::constants::{
+    GAS_CONSTANT_J_MOL_K, MOLAR_MASS_AIR_KG_MOL, STEFAN_BOLTZMANN_W_M2_K4, ZERO_CELSIUS_K,
+};
 use crate::physics::heat_transfer::{
     conduction_layers_u_w_m2_k, hollands_nusselt, stefan_diffusion_flux_kg_m2_s,
 };
@@ -73,6 +80,166 @@ pub const EDGE_FILM_W_M2_K: f64 = 10.0;
 /// steel ≈ 3.9e6; the lower is taken (common practice, no source).
 pub const PLATE_VOLUMETRIC_HEAT_J_M3_K: f64 = 2.4e6;
 
+/// Temperature difference below which the air sink's convection is evaluated as at this
+/// difference \[K\]: keeps the lagged coefficient finite and positive at dawn, when the plate
+/// is as warm as the air (our own choice, no source).
+pub const SINK_MIN_DIFFERENCE_K: f64 = 1.0;
+/// Rating point at which an air sink's coefficient is quoted in the result: the plate
+/// 10 K above air at 30 °C (our own choice, no source).
+pub const SINK_RATING_AIR_K: f64 = ZERO_CELSIUS_K + 30.0;
+/// See [`SINK_RATING_AIR_K`] \[K\].
+pub const SINK_RATING_DIFFERENCE_K: f64 = 10.0;
+
+/// Nusselt number of a hot plate facing down (or a cold plate facing up) in free
+/// convection, Nu_L = 0.27 Ra_L^¼.
+///
+/// Incropera, DeWitt, Bergman & Lavine, *Fundamentals of Heat and Mass Transfer*, 6th ed.,
+/// eq. 9.32 (from memory), with L = A/P (eq. 9.29).
+///
+/// * `rayleigh` — Ra_L = gβΔT L³/(να) [-]
+///
+/// Validity: 10⁵ ≲ Ra_L ≲ 10¹⁰. *Notes*: applied outside that range too (a 0.25 m plate a
+/// few kelvin above the air sits near 10⁵); the plate of a tilted stack is treated as level
+/// (fine for the tilts of a multi-effect stack, up to a few tens of degrees).
+pub fn downward_plate_nusselt(rayleigh: f64) -> f64 {
+    0.27 * rayleigh.max(0.0).powf(0.25)
+}
+
+/// Nusselt number on the spacing of a channel between vertical isothermal parallel plates
+/// (fins), Nu_S = [576/(Ra_S S/L)² + 2.873/(Ra_S S/L)^½]^(−½).
+///
+/// Bar-Cohen & Rohsenow (1984), as given by Incropera et al., 6th ed., eq. 9.45 with
+/// Table 9.3, symmetric isothermal plates (from memory). The first term is Elenbaas's
+/// fully developed limit Nu_S = Ra_S (S/L)/24; the second the isolated plate,
+/// Nu_L = 0.59 Ra_L^¼.
+///
+/// * `rayleigh_spacing` — Ra_S = gβΔT S³/(να) [-]
+/// * `spacing_m` — clear spacing S \[m\]; `height_m` — channel length along the flow L \[m\]
+///
+/// Validity: laminar channels, Ra_S S/L up to ≈ 10⁵.
+pub fn vertical_channel_nusselt(rayleigh_spacing: f64, spacing_m: f64, height_m: f64) -> f64 {
+    let x = rayleigh_spacing.max(0.0) * spacing_m / height_m.max(1e-6);
+    if x <= 0.0 {
+        return 0.0;
+    }
+    (576.0 / (x * x) + 2.873 / x.sqrt()).powf(-0.5)
+}
+
+/// Efficiency of a straight rectangular fin with an adiabatic tip at the corrected length
+/// L_c = L + t/2: η_f = tanh(m L_c)/(m L_c), m = (2h/(k t))^½.
+///
+/// Incropera et al., 6th ed., eqs. 3.89 and 3.86, Table 3.5 (from memory).
+///
+/// * `h_w_m2_k` — convective coefficient on the fin [W m⁻² K⁻¹]
+/// * `conductivity_w_m_k` — fin conductivity k [W m⁻¹ K⁻¹]
+/// * `thickness_m` — fin thickness t \[m\]; `height_m` — fin height L \[m\]
+///
+/// *Notes*: m = (2h/(kt))^½ takes the fin as much longer than thick (w ≫ t).
+pub fn straight_fin_efficiency(
+    h_w_m2_k: f64,
+    conductivity_w_m_k: f64,
+    thickness_m: f64,
+    height_m: f64,
+) -> f64 {
+    let lc = height_m + 0.5 * thickness_m;
+    let m = (2.0 * h_w_m2_k.max(0.0) / (conductivity_w_m_k * thickness_m).max(1e-12)).sqrt();
+    let x = m * lc;
+    if x < 1e-6 { 1.0 } else { x.tanh() / x }
+}
+
+/// An air-cooled sink under the last plate: straight fins (or a plain plate) of the plate's
+/// metal, in still air.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct AirSink {
+    /// Fin height \[m\] (0: a plain plate).
+    pub fin_height_m: f64,
+    /// Clear spacing between fins \[m\].
+    pub fin_spacing_m: f64,
+    /// Fin thickness \[m\].
+    pub fin_thickness_m: f64,
+    /// Fin conductivity [W m⁻¹ K⁻¹].
+    pub conductivity_w_m_k: f64,
+    /// Long-wave emissivity of the sink [-].
+    pub emissivity: f64,
+    /// Characteristic length of the plate, area ÷ perimeter \[m\].
+    pub plate_length_m: f64,
+}
+
+/// An air sink's coefficient per m² of plate, split into its parts.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct AirSinkCoefficient {
+    /// Convection from fins and exposed plate, per m² of plate [W m⁻² K⁻¹].
+    pub convective_w_m2_k: f64,
+    /// Long-wave radiation to surroundings at the air temperature, per m² of plate
+    /// [W m⁻² K⁻¹].
+    pub radiative_w_m2_k: f64,
+    /// Fin efficiency [-] (1 for a plain plate).
+    pub fin_efficiency: f64,
+}
+
+impl AirSinkCoefficient {
+    /// Total coefficient per m² of plate [W m⁻² K⁻¹].
+    pub fn total_w_m2_k(&self) -> f64 {
+        self.convective_w_m2_k + self.radiative_w_m2_k
+    }
+}
+
+impl AirSink {
+    /// Coefficient from the last plate at `t_plate_k` to still air at `t_air_k` \[K\] and
+    /// total pressure `pressure_pa` \[Pa\], per m² of plate.
+    ///
+    /// Plain plate (no fins): [`downward_plate_nusselt`] on L = A/P. Fins: each channel by
+    /// [`vertical_channel_nusselt`] with L = the fin height, the fins at
+    /// [`straight_fin_efficiency`] and the exposed plate between them at the channel
+    /// coefficient (overall surface efficiency, Incropera eq. 3.102–3.103, from memory).
+    /// Radiation: ε σ (T_p² + T_a²)(T_p + T_a) from the plate's plan area to surroundings
+    /// at the air temperature (the ground under the still, or the sky seen past it).
+    /// Air properties at the film temperature (dry air, ideal gas).
+    ///
+    /// *Notes*: the channel relation is for vertical channels open at both ends; fins
+    /// hanging under a nearly level stack have the plate closing the channel top and must
+    /// draw air in from the sides, so this is optimistic for them. Radiation from the fin
+    /// array counts the plan area only (the channels mostly see each other). The difference
+    /// is taken as at least [`SINK_MIN_DIFFERENCE_K`].
+    pub fn coefficient(
+        &self,
+        t_plate_k: f64,
+        t_air_k: f64,
+        pressure_pa: f64,
+    ) -> AirSinkCoefficient {
+        let dt = (t_plate_k - t_air_k).abs().max(SINK_MIN_DIFFERENCE_K);
+        let t_film = (0.5 * (t_plate_k + t_air_k)).clamp(200.0, 500.0);
+        let k = humid_air::dry_air_thermal_conductivity_w_m_k(t_film);
+        let mu = humid_air::dry_air_viscosity_pa_s(t_film);
+        let rho = pressure_pa * MOLAR_MASS_AIR_KG_MOL / (GAS_CONSTANT_J_MOL_K * t_film);
+        let nu = mu / rho;
+        let alpha = k / (rho * humid_air::DRY_AIR_SPECIFIC_HEAT_J_KG_K);
+        let g_beta_dt = 9.81 * dt / t_film;
+        let ra = |l: f64| g_beta_dt * l * l * l / (nu * alpha);
+        let (convective, eta) = if self.fin_height_m <= 0.0 {
+            let l = self.plate_length_m.max(1e-3);
+            (downward_plate_nusselt(ra(l)) * k / l, 1.0)
+        } else {
+            let s = self.fin_spacing_m.max(1e-4);
+            let t = self.fin_thickness_m;
+            let h = vertical_channel_nusselt(ra(s), s, self.fin_height_m) * k / s;
+            let eta = straight_fin_efficiency(h, self.conductivity_w_m_k, t, self.fin_height_m);
+            let per_m = 1.0 / (s + t);
+            let fin_area = 2.0 * (self.fin_height_m + 0.5 * t) * per_m;
+            let base_area = (1.0 - t * per_m).max(0.0);
+            (h * (base_area + eta * fin_area), eta)
+        };
+        let (tp, ta) = (t_plate_k, t_air_k);
+        let radiative =
+            self.emissivity * STEFAN_BOLTZMANN_W_M2_K4 * (tp * tp + ta * ta) * (tp + ta);
+        AirSinkCoefficient {
+            convective_w_m2_k: convective,
+            radiative_w_m2_k: radiative,
+            fin_efficiency: eta,
+        }
+    }
+}
+
 /// Heat and vapour transfer across a multi-effect stage's air gap: Stefan diffusion of the
 /// vapour (latent heat carried) with conduction through the air in parallel.
 ///
@@ -83,7 +250,9 @@ pub const PLATE_VOLUMETRIC_HEAT_J_M3_K: f64 = 2.4e6;
 /// separate link.
 ///
 /// * `gap_m` — gap width δ \[m\]; `total_pressure_pa` — P \[Pa\]
-/// * `conductivity_w_m_k` — humid-air conductivity k_air [W m⁻¹ K⁻¹], held fixed
+/// * `conductivity_w_m_k` — conductivity across the gap [W m⁻¹ K⁻¹], held fixed: the
+///   humid air's k_air, plus the spacers' conductivity times their share of the area where
+///   the still's spacers bridge the gap
 ///
 /// *Notes*: the derivative of D with T̄ (D ∝ T̄^2.072) is added to the Stefan derivatives,
 /// which hold D fixed. The gap is narrow enough that the air is still (Rayleigh number below
@@ -96,7 +265,7 @@ pub struct DiffusionGap {
     pub gap_m: f64,
     /// Total pressure P \[Pa\].
     pub total_pressure_pa: f64,
-    /// Air conductivity [W m⁻¹ K⁻¹].
+    /// Conductivity across the gap: air, plus area-weighted spacers [W m⁻¹ K⁻¹].
     pub conductivity_w_m_k: f64,
 }
 
@@ -111,7 +280,11 @@ impl EnclosureModel for DiffusionGap {
         dp_cold_dt_pa_k: f64,
     ) -> EnclosureFlux {
         let tm = (0.5 * (t_hot_k + t_cold_k)).max(1.0);
-        let d = humid_air::vapour_diffusivity_m2_s(tm, self.total_pressure_pa);
+        // Marrero & Mason's D = D(1 K)·T̄^2.072, with the power as exp(2.072 ln T̄): one ln and
+        // one exp instead of a general power in the solver's innermost loop (equal to
+        // [`humid_air::vapour_diffusivity_m2_s`] to round-off).
+        let d = humid_air::vapour_diffusivity_m2_s(1.0, self.total_pressure_pa)
+            * (DIFFUSIVITY_TEMPERATURE_EXPONENT * tm.ln()).exp();
         let f = stefan_diffusion_flux_kg_m2_s(
             t_hot_k,
             t_cold_k,
@@ -166,6 +339,8 @@ pub struct MultiEffectStill {
     first_stage_link: LinkId,
     sink_link: LinkId,
     sink_h_w_m2_k: f64,
+    air_sink: Option<AirSink>,
+    sink_basis: String,
     glazing_gap_m: f64,
     gap_model: Arc<DiffusionGap>,
     optics: FlatOptics,
@@ -217,7 +392,10 @@ impl MultiEffectStill {
         let gap_model = Arc::new(DiffusionGap {
             gap_m,
             total_pressure_pa: pressure_pa,
-            conductivity_w_m_k: k_air,
+            // The spacers bridge the gap in parallel with the air: one conduction term,
+            // (k_air + share·k_spacer)/δ per m² of stage, instead of a link of their own
+            // (the same heat flow, one link fewer per stage in the solver's loop).
+            conductivity_w_m_k: k_air + SPACER_AREA_SHARE * SPACER_CONDUCTIVITY_W_M_K,
         });
         let contact = 1.0 / (plate_t_m / plate.conductivity_w_m_k + 1.0 / WICK_CONTACT_W_M2_K);
 
@@ -271,7 +449,8 @@ impl MultiEffectStill {
         let mut first_stage_link = None;
         let mut prev = absorber_n;
         for i in 1..=n_stages {
-            let wick = b.water_node(&format!("stage {i} wick"), 0.0, WICK_DRY_SHARE * holding_kg);
+            let wick =
+                b.fed_wick_node(&format!("stage {i} wick"), 0.0, WICK_DRY_SHARE * holding_kg);
             let plate_n = b.node(
                 &format!("stage {i} plate"),
                 PLATE_VOLUMETRIC_HEAT_J_M3_K * plate_t_m * area,
@@ -303,13 +482,6 @@ impl MultiEffectStill {
                 LossPath::Internal,
             );
             b.conductance(
-                &format!("stage {i} spacers"),
-                wick,
-                plate_n,
-                SPACER_AREA_SHARE * area * SPACER_CONDUCTIVITY_W_M_K / gap_m,
-                LossPath::Internal,
-            );
-            b.conductance(
                 &format!("stage {i} wick edge"),
                 wick,
                 air,
@@ -330,7 +502,51 @@ impl MultiEffectStill {
             });
             prev = plate_n;
         }
-        let sink_h = k.sink_coefficient();
+        // An air sink without a coefficient set in the design is physical: its coefficient
+        // follows the last plate's temperature hour by hour; the result quotes it at the
+        // rating point.
+        let air_sink = match (k.sink, k.sink_coefficient_w_m2_k) {
+            (Sink::AirFins, None) => Some(AirSink {
+                fin_height_m: k.fin_height_mm / 1000.0,
+                fin_spacing_m: k.fin_spacing_mm / 1000.0,
+                fin_thickness_m: k.fin_thickness_mm / 1000.0,
+                conductivity_w_m_k: plate.conductivity_w_m_k,
+                emissivity: k.sink_emissivity.unwrap_or(plate.emissivity),
+                plate_length_m: area / perimeter_m.max(1e-6),
+            }),
+            _ => None,
+        };
+        let (sink_h, sink_basis) = match &air_sink {
+            Some(a) => {
+                let c = a.coefficient(
+                    SINK_RATING_AIR_K + SINK_RATING_DIFFERENCE_K,
+                    SINK_RATING_AIR_K,
+                    pressure_pa,
+                );
+                let shape = if a.fin_height_m > 0.0 {
+                    format!(
+                        "fins {:.0} mm high at {:.0} mm spacing, {:.1} mm thick, fin \
+                         efficiency {:.2}",
+                        a.fin_height_m * 1000.0,
+                        a.fin_spacing_m * 1000.0,
+                        a.fin_thickness_m * 1000.0,
+                        c.fin_efficiency
+                    )
+                } else {
+                    "a plain plate facing down, no fins".to_owned()
+                };
+                (
+                    c.total_w_m2_k(),
+                    format!(
+                        "The air sink is {shape}: {:.1} W/m²K by free convection plus {:.1} by \
+                         radiation (emissivity {:.2}) with the plate 10 K above 30 °C air; the \
+                         coefficient follows the plate hour by hour.",
+                        c.convective_w_m2_k, c.radiative_w_m2_k, a.emissivity
+                    ),
+                )
+            }
+            None => (k.sink_coefficient(), String::new()),
+        };
         let sink_link = b.conductance(
             "last plate to sink",
             prev,
@@ -367,6 +583,8 @@ impl MultiEffectStill {
             first_stage_link,
             sink_link,
             sink_h_w_m2_k: sink_h,
+            air_sink,
+            sink_basis,
             glazing_gap_m,
             gap_model,
             optics,
@@ -386,6 +604,7 @@ impl MultiEffectStill {
                 edge_ua_per_node_w_k: edge_ua,
                 stage_max_c: vec![0.0; n_stages],
                 stage_l_m2_day: vec![0.0; n_stages],
+                stage_dry_hour_fraction: vec![0.0; n_stages],
                 solar_to_vapour_efficiency: 0.0,
                 gain_output_ratio: 0.0,
                 first_stage_heat_kwh_m2_day: 0.0,
@@ -472,6 +691,7 @@ impl StillModel for MultiEffectStill {
         if let KindDetails::MultiEffect {
             stage_max_c,
             stage_l_m2_day,
+            stage_dry_hour_fraction,
             solar_to_vapour_efficiency,
             gain_output_ratio,
             first_stage_heat_kwh_m2_day,
@@ -496,6 +716,12 @@ impl StillModel for MultiEffectStill {
                     .unwrap_or(0.0)
                     / days
                     / self.footprint_m2;
+                let dry_h = run.node_dry_hours.get(s.wick.0).copied().unwrap_or(0.0);
+                stage_dry_hour_fraction[i] = if run.hours > 0.0 {
+                    dry_h / run.hours
+                } else {
+                    0.0
+                };
             }
             let q1 = run
                 .link_heat_j
@@ -534,6 +760,10 @@ impl StillModel for MultiEffectStill {
                 *absorber_max_c,
                 *last_plate_max_c,
             );
+            if !self.sink_basis.is_empty() {
+                sink_note.push(' ');
+                sink_note.push_str(&self.sink_basis);
+            }
         }
         d
     }
@@ -557,6 +787,14 @@ impl StillModel for MultiEffectStill {
         inputs.set_boundary_k(net, self.air, t_air)?;
         inputs.set_boundary_k(net, self.sky, sky_temperature_k(h, ctx.dew_point_known))?;
         inputs.set_boundary_k(net, self.sink, t_sink)?;
+        if let (Some(a), Some(last)) = (&self.air_sink, self.stages.last()) {
+            // Lagged, like the outside and glazing-gap coefficients: fixed within the hour.
+            let t_plate = state.temperature_k(last.plate).unwrap_or(t_sink);
+            let h_sink = a
+                .coefficient(t_plate, t_sink, self.gap_model.total_pressure_pa)
+                .total_w_m2_k();
+            inputs.set_conductance_w_k(net, self.sink_link, h_sink * self.area_m2)?;
+        }
         let t_glazing = state.temperature_k(self.glazing).unwrap_or(t_air);
         let t_abs = state.temperature_k(self.absorber).unwrap_or(t_air);
         let h_out = cover_outside_coefficient_w_m2_k(
@@ -691,6 +929,13 @@ mod tests {
         let d_cold =
             (f(th, tc + h).q_evaporative_w_m2 - f(th, tc - h).q_evaporative_w_m2) / (2.0 * h);
         assert!((a.dq_evaporative_dt_hot / d_hot - 1.0).abs() < 1e-5);
+        // The diffusivity inside equals the physics function's (1e-13: round-off of exp/ln
+        // against powf).
+        let tm: f64 = 330.65;
+        let fast = humid_air::vapour_diffusivity_m2_s(1.0, 101_325.0)
+            * (DIFFUSIVITY_TEMPERATURE_EXPONENT * tm.ln()).exp();
+        let slow = humid_air::vapour_diffusivity_m2_s(tm, 101_325.0);
+        assert!((fast / slow - 1.0).abs() < 1e-13);
         assert!((a.dq_evaporative_dt_cold / d_cold - 1.0).abs() < 1e-5);
     }
 }
