@@ -10,6 +10,7 @@ mod climate;
 mod compare;
 mod cost;
 mod operate;
+mod report;
 mod simulate;
 mod size;
 mod sweep;
@@ -67,6 +68,9 @@ enum Command {
     /// How many units of each variant meet a daily demand in the worst month, in most
     /// stochastic weather years; capital, land, storage, and rain the covers would catch.
     Size(size::SizeArgs),
+    /// Write the report: Markdown, a self-contained HTML page with charts, and every table as
+    /// CSV and JSON, for a funder and a workshop.
+    Report(report::ReportArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -82,6 +86,7 @@ pub fn main() -> std::process::ExitCode {
         Command::Audit(args) => audit::run(&args),
         Command::Sweep(args) => sweep::run(&args),
         Command::Size(args) => size::run(&args),
+        Command::Report(args) => report::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),
