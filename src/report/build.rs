@@ -239,7 +239,7 @@ pub fn build_context(
             ordered.push((idx, e));
         }
     }
-    let Some(&(top_idx, top)) = ordered.first() else {
+    let Some(&(_, top)) = ordered.first() else {
         return Err(Error::Model {
             variant: String::new(),
             at: String::new(),
@@ -279,7 +279,6 @@ pub fn build_context(
             reason: "the recommended variant could not be sized for the demand".into(),
         });
     };
-    let _ = top_idx;
     // Cost of one person's water for a year: the design's per-person figure when it has
     // people, otherwise the litres per person given, otherwise drinking only.
     let l_pp = per_person.unwrap_or(DRINKING_L_PER_PERSON_DAY);
