@@ -283,7 +283,8 @@ pub fn pareto_chart(ctx: &ReportContext) -> Result<Chart, String> {
         "Yield against cost per litre (filled: no variant beats it on every count)".to_owned();
     let r = &ctx.variants.ranking;
     let xmax = top(r.iter().map(|x| x.values.cost_per_l), 0.01);
-    let ymax = top(r.iter().map(|x| x.values.annual_l_m2), 10.0);
+    // Head room for the legend.
+    let ymax = top(r.iter().map(|x| x.values.annual_l_m2), 10.0) * 1.3;
     let mut svg = String::new();
     {
         let root = SVGBackend::with_string(&mut svg, (SIZE.0, 420)).into_drawing_area();
@@ -304,31 +305,40 @@ pub fn pareto_chart(ctx: &ReportContext) -> Result<Chart, String> {
             .light_line_style(WHITE)
             .draw()
             .map_err(err)?;
-        let mut front: Vec<(f64, f64)> = r
-            .iter()
-            .filter(|x| x.pareto)
-            .map(|x| (x.values.cost_per_l, x.values.annual_l_m2))
-            .collect();
-        front.sort_by(|a, b| a.0.total_cmp(&b.0));
-        c.draw_series(LineSeries::new(front, colour(0).mix(0.6).stroke_width(1)))
-            .map_err(err)?;
+        // One series per variant, named in a legend (labels beside close points collide).
+        // The front is over all five criteria, so its members are not joined by a line.
         for (i, x) in r.iter().enumerate() {
             let p = (x.values.cost_per_l, x.values.annual_l_m2);
             let col = colour(i);
-            let style = if x.pareto {
+            let filled = x.pareto;
+            let style = if filled {
                 col.filled()
             } else {
                 col.stroke_width(2)
             };
             c.draw_series(std::iter::once(Circle::new(p, 6, style)))
-                .map_err(err)?;
-            c.draw_series(std::iter::once(Text::new(
-                format!("{} (rank {})", x.name, x.rank),
-                p,
-                (FONT, 13).into_font().color(&BLACK),
-            )))
-            .map_err(err)?;
+                .map_err(err)?
+                .label(format!(
+                    "{} (rank {}{})",
+                    x.name,
+                    x.rank,
+                    if filled { ", on the front" } else { "" }
+                ))
+                .legend(move |(lx, ly)| {
+                    let s = if filled {
+                        col.filled()
+                    } else {
+                        col.stroke_width(2)
+                    };
+                    Circle::new((lx + 6, ly), 5, s)
+                });
         }
+        c.configure_series_labels()
+            .background_style(WHITE.mix(0.9))
+            .border_style(BLACK.mix(0.4))
+            .position(SeriesLabelPosition::UpperLeft)
+            .draw()
+            .map_err(err)?;
         root.present().map_err(err)?;
     }
     Ok(finish("pareto", &title, svg))
