@@ -21,6 +21,7 @@ pub mod network;
 pub mod operation;
 pub mod output;
 pub mod physics;
+pub mod report;
 pub mod stills;
 pub mod workshop;
 

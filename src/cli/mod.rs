@@ -11,6 +11,7 @@ mod climate;
 mod compare;
 mod cost;
 mod operate;
+mod report;
 mod simulate;
 mod size;
 mod sweep;
@@ -75,6 +76,9 @@ enum Command {
     /// Fit a variant's calibration factors to a pilot still's measured record (confidence
     /// intervals, goodness of fit, charts) and write them into a new design file.
     Calibrate(calibrate::CalibrateArgs),
+    /// Write the report: Markdown, a self-contained HTML page with charts, and every table as
+    /// CSV and JSON, for a funder and a workshop.
+    Report(report::ReportArgs),
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -92,6 +96,7 @@ pub fn main() -> std::process::ExitCode {
         Command::Size(args) => size::run(&args),
         Command::Uncertainty(args) => uncertainty::run(&args),
         Command::Calibrate(args) => calibrate::run(&args),
+        Command::Report(args) => report::run(&args),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),

@@ -14,6 +14,7 @@ mod operation;
 mod physics_sun;
 mod physics_transfer;
 mod physics_water;
+mod report;
 mod stills;
 mod stills_double_slope;
 mod stills_multi_effect;

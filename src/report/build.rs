@@ -1,0 +1,644 @@
+//! Assembling the [`ReportContext`] from a design: the same evaluation and ranking as
+//! `compare`, a mean-year sizing with `size`'s rules, and the recommended basin's day.
+
+use std::collections::BTreeMap;
+
+use sha2::{Digest, Sha256};
+
+use super::context::*;
+use crate::cautions;
+use crate::compare::size::{SizeOptions, UnitYear, size_from_years};
+use crate::compare::{self, DesignEvaluation, Evaluation, Scales, Weights};
+use crate::design::{
+    Climate, DAYS_IN_MONTH, DRINKING_AND_COOKING_L_PER_PERSON_DAY, DRINKING_L_PER_PERSON_DAY,
+    DesignErrors, DesignIssue, LoadedDesign,
+};
+use crate::error::Error;
+use crate::network::MAX_BALANCE_RESIDUAL_FRACTION;
+use crate::stills::{self, RunOptions, SiteWeather};
+
+/// Total basic water need per person and day for drinking, cooking and hygiene [L]: the
+/// Sphere Handbook (2018), water-supply standard 2.1, key indicator (from memory).
+pub const BASIC_TOTAL_L_PER_PERSON_DAY: f64 = 15.0;
+
+/// Short month names, January first.
+pub const MONTHS: [&str; 12] = [
+    "Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec",
+];
+
+/// Where the demand comes from.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum DemandChoice {
+    /// The design's `[project.demand]`, or 3 L/person/day for nobody when it has none.
+    FromDesign,
+    /// People × litres per person and day.
+    People {
+        /// People served (≥ 1).
+        people: u32,
+        /// Litres per person and day (> 0).
+        l_per_person_day: f64,
+    },
+    /// A total demand [L day⁻¹] (> 0).
+    Total(f64),
+}
+
+/// What a report is built with.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ReportOptions {
+    /// Seed recorded for (and passed to) the stochastic stages.
+    pub seed: u64,
+    /// Demand to size for.
+    pub demand: DemandChoice,
+    /// Date of generation, `YYYY-MM-DD`.
+    pub date: String,
+    /// The command line that regenerates the report (recorded, not run).
+    pub command: String,
+}
+
+/// The date for a report: `SOURCE_DATE_EPOCH` (seconds since 1970, UTC) when set and valid,
+/// otherwise today (UTC), as `YYYY-MM-DD`.
+pub fn report_date(source_date_epoch: Option<&str>) -> String {
+    let secs = source_date_epoch.and_then(|s| s.trim().parse::<i64>().ok());
+    let when = secs
+        .and_then(|s| chrono::DateTime::from_timestamp(s, 0))
+        .unwrap_or_else(chrono::Utc::now);
+    when.format("%Y-%m-%d").to_string()
+}
+
+/// SHA-256 of bytes, lower-case hex.
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    let digest = Sha256::digest(bytes);
+    digest.iter().map(|b| format!("{b:02x}")).collect()
+}
+
+fn option_error(loaded: &LoadedDesign, option: &str, message: String) -> Error {
+    Error::Design(DesignErrors(vec![DesignIssue {
+        file: loaded.source.clone(),
+        line_col: None,
+        path: option.into(),
+        message,
+    }]))
+}
+
+/// Demand [L day⁻¹], people and litres per person, and a sentence saying where it came from.
+fn resolve_demand(
+    loaded: &LoadedDesign,
+    choice: DemandChoice,
+) -> Result<(f64, Option<u32>, Option<f64>, String), Error> {
+    match choice {
+        DemandChoice::Total(d) => {
+            if !(d.is_finite() && d > 0.0) {
+                return Err(option_error(
+                    loaded,
+                    "--demand",
+                    format!("must be a positive number of litres per day, got {d}"),
+                ));
+            }
+            Ok((d, None, None, format!("{d} L/day given with --demand")))
+        }
+        DemandChoice::People {
+            people,
+            l_per_person_day,
+        } => {
+            if people == 0 {
+                return Err(option_error(
+                    loaded,
+                    "--people",
+                    "at least one person is needed".into(),
+                ));
+            }
+            if !(l_per_person_day.is_finite() && l_per_person_day > 0.0) {
+                return Err(option_error(
+                    loaded,
+                    "--litres-per-person",
+                    format!("must be a positive number of litres, got {l_per_person_day}"),
+                ));
+            }
+            let total = f64::from(people) * l_per_person_day;
+            Ok((
+                total,
+                Some(people),
+                Some(l_per_person_day),
+                format!("{people} people × {l_per_person_day} L/person/day given with --people"),
+            ))
+        }
+        DemandChoice::FromDesign => match &loaded.design.project.demand {
+            Some(d) => {
+                let per = d.people.map(|_| {
+                    d.litres_per_person_day
+                        .unwrap_or(crate::design::DEFAULT_LITRES_PER_PERSON_DAY)
+                });
+                Ok((
+                    d.total_litres_per_day(),
+                    d.people,
+                    per,
+                    "the design's [project.demand]".into(),
+                ))
+            }
+            None => Err(option_error(
+                loaded,
+                "project.demand",
+                "the design gives no demand; add [project.demand] or pass --people N or \
+                 --demand L_PER_DAY"
+                    .into(),
+            )),
+        },
+    }
+}
+
+/// Size one evaluated variant on the mean year: every day of a month makes that month's
+/// average-day output, and `size`'s rules (units for the worst month, rows spaced against noon
+/// shading) apply to that one year.
+fn mean_year_sizing(
+    loaded: &LoadedDesign,
+    index: usize,
+    e: &Evaluation,
+    demand_l_day: f64,
+    seed: u64,
+) -> Result<Result<SizingRow, String>, Error> {
+    let mut daily = Vec::with_capacity(365);
+    for (m, days) in e.result.months.iter().zip(DAYS_IN_MONTH) {
+        daily.extend(std::iter::repeat_n(m.l_day, days as usize));
+    }
+    let years = [UnitYear::from_daily(0, daily)];
+    let opts = SizeOptions {
+        demand_l_day,
+        confidence: 0.5,
+        years: 1,
+        seed,
+    };
+    Ok(
+        size_from_years(loaded, index, &years, &opts)?.map(|s| SizingRow {
+            name: s.name,
+            units: s.units,
+            footprint_m2: s.footprint_m2,
+            land_m2: s.land_m2,
+            capital: s.capital,
+            array_worst_month_l_day: s.array_worst_month_l_day,
+        }),
+    )
+}
+
+fn mean(xs: impl Iterator<Item = f64>) -> f64 {
+    let (s, n) = xs.fold((0.0, 0usize), |(s, n), x| (s + x, n + 1));
+    if n == 0 { 0.0 } else { s / n as f64 }
+}
+
+/// Build the whole context: evaluate and rank every variant exactly as `compare` does (default
+/// weights and scales), size for the demand, and gather the sections.
+///
+/// `design_bytes` and `library_bytes` are hashed for the reproducibility section.
+///
+/// Errors: those of [`compare::evaluate_design`]; [`Error::Design`] for a bad demand option or
+/// a design without demand and no option; [`Error::Model`] when the recommended variant
+/// cannot be sized.
+pub fn build_context(
+    loaded: &LoadedDesign,
+    design_bytes: &[u8],
+    library_bytes: &[u8],
+    opts: &ReportOptions,
+) -> Result<ReportContext, Error> {
+    let (demand_l_day, people, per_person, demand_from) = resolve_demand(loaded, opts.demand)?;
+    let weather: SiteWeather = stills::site_weather(loaded)?;
+    let ev: DesignEvaluation = compare::evaluate_design(loaded, &weather, &RunOptions::default())?;
+    let currency = ev.currency.clone();
+    let scales = Scales::default();
+    if currency != scales.currency {
+        return Err(option_error(
+            loaded,
+            "project.currency",
+            format!(
+                "the report ranks with compare's default reference scales, which are in {}; \
+                 this design counts in {currency} (rank it with `stillbench compare --scales`)",
+                scales.currency
+            ),
+        ));
+    }
+    let ranking = compare::rank(&ev.candidates(), &Weights::default(), &scales).map_err(|e| {
+        Error::Model {
+            variant: String::new(),
+            at: String::new(),
+            reason: format!("ranking: {e}"),
+        }
+    })?;
+    let pareto_front: Vec<String> = ranking
+        .iter()
+        .filter(|r| r.pareto)
+        .map(|r| r.name.clone())
+        .collect();
+    // Evaluations in ranking order, with their index in the design.
+    let mut ordered: Vec<(usize, &Evaluation)> = Vec::new();
+    for r in &ranking {
+        if let Some(e) = ev.evaluated.iter().find(|e| e.name == r.name) {
+            let idx = loaded
+                .design
+                .variants
+                .iter()
+                .position(|v| v.name == e.name)
+                .unwrap_or(0);
+            ordered.push((idx, e));
+        }
+    }
+    let Some(&(_, top)) = ordered.first() else {
+        return Err(Error::Model {
+            variant: String::new(),
+            at: String::new(),
+            reason: "no variant could be ranked".into(),
+        });
+    };
+    let Some(first) = ranking.first() else {
+        return Err(Error::Model {
+            variant: String::new(),
+            at: String::new(),
+            reason: "no variant could be ranked".into(),
+        });
+    };
+
+    let mut sizing = Vec::new();
+    let mut not_ranked: Vec<NotRanked> = ev
+        .skipped
+        .iter()
+        .map(|s| NotRanked {
+            name: s.name.clone(),
+            reason: s.reason.clone(),
+        })
+        .collect();
+    for &(idx, e) in &ordered {
+        match mean_year_sizing(loaded, idx, e, demand_l_day, opts.seed)? {
+            Ok(row) => sizing.push(row),
+            Err(reason) => not_ranked.push(NotRanked {
+                name: e.name.clone(),
+                reason: format!("not sized: {reason}"),
+            }),
+        }
+    }
+    let Some(top_size) = sizing.iter().find(|s| s.name == top.name).cloned() else {
+        return Err(Error::Model {
+            variant: top.name.clone(),
+            at: String::new(),
+            reason: "the recommended variant could not be sized for the demand".into(),
+        });
+    };
+    // Cost of one person's water for a year: the design's per-person figure when it has
+    // people, otherwise the litres per person given, otherwise drinking only.
+    let l_pp = per_person.unwrap_or(DRINKING_L_PER_PERSON_DAY);
+    let cost_per_person_year = first.values.cost_per_l * l_pp * 365.0;
+
+    let summary = SummarySection {
+        recommended: first.name.clone(),
+        kind: top.kind.clone(),
+        why: first.explanation.clone(),
+        score: first.score,
+        annual_l_m2: first.values.annual_l_m2,
+        worst_month_l_m2_day: first.values.worst_month_l_m2_day,
+        worst_month: top.worst_month,
+        worst_month_name: month_name(top.worst_month),
+        cost_per_l: first.values.cost_per_l,
+        capital_per_l_day: first.values.capital_per_l_day,
+        complexity_points: first.values.complexity_points,
+        sizing: top_size,
+        cost_per_person_year,
+        not_ranked,
+    };
+
+    let need = NeedSection {
+        demand_l_day,
+        demand_from,
+        people,
+        l_per_person_day: per_person,
+        minimums: vec![
+            NeedRow {
+                water_use: "drinking only (survival)".into(),
+                l_per_person_day: DRINKING_L_PER_PERSON_DAY,
+                source: "Sphere Handbook (2018), water-supply standard 2.1, 2.5–3 L \
+                         (from memory)"
+                    .into(),
+            },
+            NeedRow {
+                water_use: "drinking and basic cooking".into(),
+                l_per_person_day: DRINKING_AND_COOKING_L_PER_PERSON_DAY,
+                source: "Sphere Handbook (2018), water-supply standard 2.1, cooking 3–6 L \
+                         (from memory)"
+                    .into(),
+            },
+            NeedRow {
+                water_use: "all basic domestic needs (drinking, cooking, personal and domestic \
+                       hygiene)"
+                    .into(),
+                l_per_person_day: BASIC_TOTAL_L_PER_PERSON_DAY,
+                source: "Sphere Handbook (2018), water-supply standard 2.1 key indicator \
+                         (from memory)"
+                    .into(),
+            },
+        ],
+    };
+
+    let site = site_section(loaded, top);
+    let monthly: Vec<VariantMonths> = ordered
+        .iter()
+        .map(|(_, e)| VariantMonths {
+            name: e.name.clone(),
+            kind: e.kind.clone(),
+            footprint_m2: e.result.footprint_m2,
+            aperture_m2: e.result.aperture_m2,
+            evaporating_m2: e.result.evaporating_m2,
+            l_m2_day: e.result.months.iter().map(|m| m.l_m2_day).collect(),
+        })
+        .collect();
+    let justification = JustificationSection {
+        variants: ordered
+            .iter()
+            .map(|(_, e)| {
+                let r = &e.result;
+                let ceiling = mean(r.months.iter().map(|m| m.ceiling_l_m2_day));
+                BalanceRow {
+                    name: e.name.clone(),
+                    kind: e.kind.clone(),
+                    energy_residual: r.energy_residual,
+                    mean_l_m2_day: r.mean_l_m2_day,
+                    ceiling_l_m2_day: ceiling,
+                    share_of_ceiling: if ceiling > 0.0 {
+                        r.mean_l_m2_day / ceiling
+                    } else {
+                        0.0
+                    },
+                    mean_efficiency: mean(r.months.iter().map(|m| m.efficiency)),
+                }
+            })
+            .collect(),
+        residual_bound: MAX_BALANCE_RESIDUAL_FRACTION,
+        assumptions: assumptions(loaded),
+    };
+    let life_cycle = LifeCycleSection {
+        variants: ordered
+            .iter()
+            .map(|(_, e)| {
+                let c = &e.cost.cost;
+                LifeCycleRow {
+                    name: e.name.clone(),
+                    capital: c.capital,
+                    replacements_present_worth: c.replacements_present_worth,
+                    operator_h_per_year: c.operator_h_per_year,
+                    upkeep_per_year: c.upkeep_per_year,
+                    annualised: c.annualised,
+                    life_years: c.life_years,
+                    discount_rate: c.discount_rate,
+                    cost_per_l: e.values.cost_per_l,
+                    cost_per_person_year: Some(e.values.cost_per_l * l_pp * 365.0),
+                    replacements: c
+                        .replacements
+                        .iter()
+                        .map(|r| {
+                            format!(
+                                "{} ({}) every {} years, {} time(s)",
+                                r.part, r.item, r.lifetime_years, r.count
+                            )
+                        })
+                        .collect(),
+                }
+            })
+            .collect(),
+    };
+    let operation = operation_section(loaded, &ordered, &weather)?;
+    let environment = EnvironmentSection {
+        variants: ordered
+            .iter()
+            .filter_map(|(_, e)| {
+                let units = sizing.iter().find(|s| s.name == e.name)?.units;
+                let ops: Vec<_> = e
+                    .result
+                    .months
+                    .iter()
+                    .filter_map(|m| m.operation.as_ref())
+                    .collect();
+                if ops.len() != 12 {
+                    return None;
+                }
+                let days = DAYS_IN_MONTH.iter().map(|d| f64::from(*d));
+                let flush_year: f64 = ops.iter().zip(days).map(|(o, d)| o.flush_l * d).sum();
+                let feed_year: f64 = ops
+                    .iter()
+                    .zip(DAYS_IN_MONTH)
+                    .map(|(o, d)| o.feed_l * f64::from(d))
+                    .sum();
+                let u = units as f64;
+                Some(EnvironmentRow {
+                    name: e.name.clone(),
+                    units,
+                    brine_l_day: u * flush_year / 365.0,
+                    // Salt that enters with the feed leaves with the brine (or as crust that is
+                    // cleaned out): 1 kg of feed = 1 L, as the operation module books it.
+                    salt_kg_year: u * feed_year * loaded.design.site.feed_salinity_g_kg / 1000.0,
+                })
+            })
+            .collect(),
+    };
+    let reproducibility = ReproducibilitySection {
+        version: crate::VERSION.to_owned(),
+        design_file: loaded.source.display().to_string(),
+        design_sha256: sha256_hex(design_bytes),
+        library_file: loaded.library_path.display().to_string(),
+        library_sha256: sha256_hex(library_bytes),
+        seed: opts.seed,
+        date: opts.date.clone(),
+        command: opts.command.clone(),
+    };
+    let cautions = CautionsSection {
+        short: cautions::CAUTIONS.iter().map(|s| (*s).to_owned()).collect(),
+        long: cautions::REPORT_CAUTIONS
+            .iter()
+            .map(|(h, t)| CautionItem {
+                heading: (*h).to_owned(),
+                text: (*t).to_owned(),
+            })
+            .collect(),
+        calcium_min_mg_l: cautions::REMINERALISED_CALCIUM_MIN_MG_L,
+        magnesium_min_mg_l: cautions::REMINERALISED_MAGNESIUM_MIN_MG_L,
+    };
+    Ok(ReportContext {
+        meta: MetaSection {
+            title: loaded.design.project.title.clone(),
+            date: opts.date.clone(),
+            version: crate::VERSION.to_owned(),
+            currency: currency.clone(),
+        },
+        summary,
+        need,
+        site,
+        variants: VariantsSection {
+            ranking,
+            pareto_front,
+            monthly,
+            sizing,
+        },
+        justification,
+        life_cycle,
+        operation,
+        environment,
+        reproducibility,
+        cautions,
+        references: super::references::REFERENCES
+            .iter()
+            .map(|(k, t)| Reference {
+                key: (*k).to_owned(),
+                text: (*t).to_owned(),
+            })
+            .collect(),
+        charts: BTreeMap::new(),
+        uncertainty: None,
+        sensitivity: None,
+        validation: None,
+        alternatives: None,
+        risks: None,
+        workshop: None,
+    })
+}
+
+fn month_name(m: u32) -> String {
+    MONTHS
+        .get((m as usize).wrapping_sub(1))
+        .map_or_else(|| format!("month {m}"), |s| (*s).to_owned())
+}
+
+fn site_section(loaded: &LoadedDesign, top: &Evaluation) -> SiteSection {
+    let s = &loaded.design.site;
+    let (source, months) = match &s.climate {
+        Climate::Monthly(m) => (
+            "monthly means given in the design".to_owned(),
+            (0..12)
+                .map(|i| ClimateMonth {
+                    month: i as u32 + 1,
+                    name: MONTHS[i].to_owned(),
+                    ghi_kwh_m2_day: m.ghi_kwh_m2_day[i],
+                    t_max_c: Some(m.t_max_c[i]),
+                    t_min_c: Some(m.t_min_c[i]),
+                    rain_mm: m.rain_mm.map(|r| r[i]),
+                })
+                .collect(),
+        ),
+        Climate::WeatherFile(_) => (
+            "an hourly weather file (monthly irradiation as simulated)".to_owned(),
+            top.result
+                .months
+                .iter()
+                .map(|m| ClimateMonth {
+                    month: m.month,
+                    name: month_name(m.month),
+                    ghi_kwh_m2_day: m.insolation_kwh_m2_day,
+                    t_max_c: None,
+                    t_min_c: None,
+                    rain_mm: None,
+                })
+                .collect(),
+        ),
+    };
+    SiteSection {
+        name: s.name.clone(),
+        latitude_deg: s.latitude_deg,
+        longitude_deg: s.longitude_deg,
+        elevation_m: s.elevation_m,
+        feed_salinity_g_kg: s.feed_salinity_g_kg,
+        source,
+        months,
+    }
+}
+
+fn assumptions(loaded: &LoadedDesign) -> Vec<String> {
+    let c = &loaded.design.costs;
+    vec![
+        "Each month is represented by its average day (Klein's recommended day), repeated \
+         until the still's daily cycle repeats; yields are per m² of footprint."
+            .into(),
+        "Hourly sunlight from the monthly mean by Collares-Pereira & Rabl, split into beam and \
+         diffuse by Erbs, transposed onto each cover by Hay–Davies."
+            .into(),
+        "Saturation pressure of water by IAPWS-IF97; brine vapour pressure lowered by \
+         salinity (Nayar et al.); latent heat per kilogram of vapour."
+            .into(),
+        "Inside a basin: Dunkle's heat and mass transfer (Kumar–Tiwari where a variant asks \
+         for it); evaporation computed from the vapour-pressure difference."
+            .into(),
+        "Cover reflection and absorption by Fresnel and Bouguer against incidence angle; dust, \
+         drops falling back and leaking vapour as each variant's documented losses."
+            .into(),
+        format!(
+            "Money: discount rate, life and upkeep from the design's [costs]; commissioning \
+             check on a day of {} kWh/m².",
+            c.commissioning_kwh_m2_day
+        ),
+        "Sizing here uses the mean year (every day of a month makes that month's average-day \
+         output); `stillbench size` sizes over stochastic weather years at a confidence."
+            .into(),
+    ]
+}
+
+fn operation_section(
+    loaded: &LoadedDesign,
+    ordered: &[(usize, &Evaluation)],
+    weather: &SiteWeather,
+) -> Result<OperationSection, Error> {
+    let mut variants = Vec::new();
+    for (_, e) in ordered {
+        let wm = e.worst_month as usize;
+        if let Some(o) = e
+            .result
+            .months
+            .get(wm.wrapping_sub(1))
+            .and_then(|m| m.operation.as_ref())
+        {
+            variants.push(OperationRow {
+                name: e.name.clone(),
+                feed: o.feed.to_owned(),
+                flush: o.flush.to_owned(),
+                set_depth_mm: o.set_depth_mm,
+                feed_l_day: o.feed_l,
+                flush_l_day: o.flush_l,
+                peak_salinity_g_kg: o.peak_salinity_g_kg,
+                dry_out_h: o.dry_out_h,
+                warnings: o.warnings.clone(),
+            });
+        }
+    }
+    // The best-ranked basin still's worst-month day, hour by hour.
+    let Some((idx, e)) = ordered.iter().find(|(_, e)| {
+        e.result
+            .months
+            .first()
+            .is_some_and(|m| m.operation.is_some())
+    }) else {
+        return Ok(OperationSection {
+            variants,
+            profile_variant: None,
+            profile: Vec::new(),
+        });
+    };
+    let Some(v) = loaded.design.variants.get(*idx) else {
+        return Ok(OperationSection {
+            variants,
+            profile_variant: None,
+            profile: Vec::new(),
+        });
+    };
+    let run = RunOptions {
+        hourly: true,
+        ..RunOptions::default()
+    };
+    let r = stills::simulate_variant(loaded, v, weather, &run)?;
+    let profile = r
+        .hourly
+        .unwrap_or_default()
+        .into_iter()
+        .filter(|h| h.month == e.worst_month)
+        .map(|h| ProfileHour {
+            solar_hour_h: h.solar_hour_h,
+            depth_mm: h.depth_mm,
+            salinity_g_kg: h.salinity_g_kg,
+            distillate_l: h.distillate_l,
+        })
+        .collect();
+    Ok(OperationSection {
+        variants,
+        profile_variant: Some(e.name.clone()),
+        profile,
+    })
+}

@@ -1,0 +1,521 @@
+//! The report's data: one `Serialize` struct per section, assembled by [`build_context`].
+//!
+//! Templates (`templates/*.md`) read these structs by field name, so a user can change
+//! wording, order or language without Rust. Sections whose data comes from stages that are
+//! not part of every run are `Option`s and render only when present: [`UncertaintySection`],
+//! [`SensitivitySection`], [`ValidationSection`], [`AlternativesSection`], [`RisksSection`]
+//! and the workshop sheet ([`ReportContext::workshop`]). A stage that produces one of them
+//! fills the field after [`build_context`] and before rendering.
+
+use serde::Serialize;
+
+use crate::compare::Ranked;
+
+/// Everything a report template can read.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ReportContext {
+    /// Title, date and tool version.
+    pub meta: MetaSection,
+    /// The recommendation and the headline figures.
+    pub summary: SummarySection,
+    /// Water need per person and what a still covers.
+    pub need: NeedSection,
+    /// Site and monthly climate.
+    pub site: SiteSection,
+    /// The ranking and the per-variant monthly yields.
+    pub variants: VariantsSection,
+    /// Model, assumptions, energy balance and the single-effect ceiling.
+    pub justification: JustificationSection,
+    /// Capital, running costs, replacements, cost per litre and per person.
+    pub life_cycle: LifeCycleSection,
+    /// Feed, flushing, depth and salinity over a day, monitoring.
+    pub operation: OperationSection,
+    /// Brine discharged and salt load.
+    pub environment: EnvironmentSection,
+    /// What a reviewer needs to regenerate every figure.
+    pub reproducibility: ReproducibilitySection,
+    /// Safety cautions (long form).
+    pub cautions: CautionsSection,
+    /// Every cited source, in citation-key order.
+    pub references: Vec<Reference>,
+    /// Charts by name (`climate`, `monthly_yield`, `pareto`, `day_profile`, `tornado`):
+    /// the file a template links (`charts/<name>.svg`) and its title.
+    pub charts: std::collections::BTreeMap<String, ChartRef>,
+    /// Hook: Monte Carlo yield ranges (P10/P50/P90) per variant, when computed.
+    pub uncertainty: Option<UncertaintySection>,
+    /// Hook: one-at-a-time sensitivity of the recommended variant (tornado), when computed.
+    pub sensitivity: Option<SensitivitySection>,
+    /// Hook: comparison with published devices or a calibrated pilot still, when available.
+    pub validation: Option<ValidationSection>,
+    /// Hook: other ways of getting drinking water (`[[alternative]]`), when the design has them.
+    pub alternatives: Option<AlternativesSection>,
+    /// Hook: failure modes with likelihood, impact and mitigation (`[[risk]]`), when given.
+    pub risks: Option<RisksSection>,
+    /// Hook: the fabricator sheet, serialised by the workshop stage and rendered by the
+    /// `workshop.md` template (included only when this is present and that template exists).
+    pub workshop: Option<serde_json::Value>,
+}
+
+/// Title, date and version.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct MetaSection {
+    /// The design's title (user text).
+    pub title: String,
+    /// Date of generation, `YYYY-MM-DD` (UTC; `SOURCE_DATE_EPOCH` fixes it).
+    pub date: String,
+    /// stillbench version.
+    pub version: String,
+    /// Currency of every money figure.
+    pub currency: String,
+}
+
+/// The recommendation and the headline figures; numbers equal `compare --format json`.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SummarySection {
+    /// Recommended variant (rank 1).
+    pub recommended: String,
+    /// Its kind.
+    pub kind: String,
+    /// Why it ranks first (the ranking's sentence).
+    pub why: String,
+    /// Ranking score [-].
+    pub score: f64,
+    /// Annual distillate per m² of footprint [L m⁻² year⁻¹].
+    pub annual_l_m2: f64,
+    /// Mean daily distillate in the worst month per m² [L m⁻² day⁻¹].
+    pub worst_month_l_m2_day: f64,
+    /// The worst month, 1…12.
+    pub worst_month: u32,
+    /// Its name.
+    pub worst_month_name: String,
+    /// Cost per litre over the life [currency L⁻¹].
+    pub cost_per_l: f64,
+    /// Capital per L/day of worst-month capacity [currency (L day⁻¹)⁻¹].
+    pub capital_per_l_day: f64,
+    /// Build complexity [points].
+    pub complexity_points: f64,
+    /// Sizing of the recommended variant for the demand.
+    pub sizing: SizingRow,
+    /// Cost of one person's water for a year [currency person⁻¹ year⁻¹].
+    pub cost_per_person_year: f64,
+    /// Variants that could not be ranked, with why.
+    pub not_ranked: Vec<NotRanked>,
+}
+
+/// A variant left out, and why.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct NotRanked {
+    /// Variant name.
+    pub name: String,
+    /// Reason.
+    pub reason: String,
+}
+
+/// The number of units of one variant that meets the demand in the mean year's worst month.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SizingRow {
+    /// Variant name.
+    pub name: String,
+    /// Units.
+    pub units: u64,
+    /// Footprint of all units [m²].
+    pub footprint_m2: f64,
+    /// Land with row spacing against noon shading [m²].
+    pub land_m2: f64,
+    /// Capital of all units [currency].
+    pub capital: f64,
+    /// Worst-month output of the array [L day⁻¹].
+    pub array_worst_month_l_day: f64,
+}
+
+/// Demand and published per-person figures.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct NeedSection {
+    /// Demand [L day⁻¹].
+    pub demand_l_day: f64,
+    /// Where the demand came from (design, `--people`, `--demand`).
+    pub demand_from: String,
+    /// People served, when known.
+    pub people: Option<u32>,
+    /// Demand per person [L person⁻¹ day⁻¹], when people are known.
+    pub l_per_person_day: Option<f64>,
+    /// Published minimums for comparison.
+    pub minimums: Vec<NeedRow>,
+}
+
+/// One published per-person figure.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct NeedRow {
+    /// What it covers.
+    pub water_use: String,
+    /// Litres per person and day [L person⁻¹ day⁻¹].
+    pub l_per_person_day: f64,
+    /// Source (with "from memory" where recalled).
+    pub source: String,
+}
+
+/// Site and its monthly climate.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SiteSection {
+    /// Site name (user text).
+    pub name: String,
+    /// Latitude [deg], north positive.
+    pub latitude_deg: f64,
+    /// Longitude [deg], east positive.
+    pub longitude_deg: f64,
+    /// Elevation \[m\].
+    pub elevation_m: f64,
+    /// Feed salinity [g kg⁻¹].
+    pub feed_salinity_g_kg: f64,
+    /// Where the climate comes from (monthly means or a weather file).
+    pub source: String,
+    /// January to December.
+    pub months: Vec<ClimateMonth>,
+}
+
+/// One month of climate.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ClimateMonth {
+    /// Month 1…12.
+    pub month: u32,
+    /// Short month name.
+    pub name: String,
+    /// Global horizontal irradiation [kWh m⁻² day⁻¹].
+    pub ghi_kwh_m2_day: f64,
+    /// Mean daily maximum air temperature [°C], when given.
+    pub t_max_c: Option<f64>,
+    /// Mean daily minimum air temperature [°C], when given.
+    pub t_min_c: Option<f64>,
+    /// Rainfall [mm month⁻¹], when given.
+    pub rain_mm: Option<f64>,
+}
+
+/// The ranking and the monthly yields of every ranked variant.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct VariantsSection {
+    /// Best first, as `compare` ranks them.
+    pub ranking: Vec<Ranked>,
+    /// Names on the Pareto front.
+    pub pareto_front: Vec<String>,
+    /// Monthly yield per variant, in ranking order.
+    pub monthly: Vec<VariantMonths>,
+    /// Sizing of every ranked variant for the demand, in ranking order.
+    pub sizing: Vec<SizingRow>,
+}
+
+/// One variant's monthly yield.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct VariantMonths {
+    /// Variant name.
+    pub name: String,
+    /// Kind.
+    pub kind: String,
+    /// Footprint [m²].
+    pub footprint_m2: f64,
+    /// Cover (aperture) area [m²].
+    pub aperture_m2: f64,
+    /// Evaporating area [m²].
+    pub evaporating_m2: f64,
+    /// January to December [L m⁻² day⁻¹].
+    pub l_m2_day: Vec<f64>,
+}
+
+/// What a reviewer needs to believe the yield.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct JustificationSection {
+    /// Energy balance and ceiling per ranked variant.
+    pub variants: Vec<BalanceRow>,
+    /// Largest |residual| allowed [-].
+    pub residual_bound: f64,
+    /// Assumptions and defaults, one sentence each.
+    pub assumptions: Vec<String>,
+}
+
+/// Energy balance and single-effect ceiling of one variant.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct BalanceRow {
+    /// Variant name.
+    pub name: String,
+    /// Kind.
+    pub kind: String,
+    /// Largest |energy residual| over the months, as a fraction of absorbed sunlight [-].
+    pub energy_residual: f64,
+    /// Mean daily yield over the year [L m⁻² day⁻¹].
+    pub mean_l_m2_day: f64,
+    /// Mean single-effect ceiling over the year [L m⁻² day⁻¹].
+    pub ceiling_l_m2_day: f64,
+    /// Yield ÷ ceiling [-] (above 1 only for a multi-effect still).
+    pub share_of_ceiling: f64,
+    /// Mean daily efficiency over the year [-].
+    pub mean_efficiency: f64,
+}
+
+/// Costs over the life, per variant.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct LifeCycleSection {
+    /// In ranking order.
+    pub variants: Vec<LifeCycleRow>,
+}
+
+/// One variant's life-cycle cost.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct LifeCycleRow {
+    /// Variant name.
+    pub name: String,
+    /// Capital of one unit [currency].
+    pub capital: f64,
+    /// Present worth of replacements [currency].
+    pub replacements_present_worth: f64,
+    /// Operator time [h year⁻¹].
+    pub operator_h_per_year: f64,
+    /// Upkeep per year including operator time [currency year⁻¹].
+    pub upkeep_per_year: f64,
+    /// Annualised cost [currency year⁻¹].
+    pub annualised: f64,
+    /// Life [years].
+    pub life_years: f64,
+    /// Discount rate [-].
+    pub discount_rate: f64,
+    /// Cost per litre over the life [currency L⁻¹].
+    pub cost_per_l: f64,
+    /// Cost per person per year [currency person⁻¹ year⁻¹], when known.
+    pub cost_per_person_year: Option<f64>,
+    /// Parts replaced during the life.
+    pub replacements: Vec<String>,
+}
+
+/// Operation of each basin variant in its worst month, and the recommended variant's day.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct OperationSection {
+    /// Per ranked variant with a basin.
+    pub variants: Vec<OperationRow>,
+    /// The variant whose day is charted (the best-ranked basin still), when any.
+    pub profile_variant: Option<String>,
+    /// Its hours over the worst month's day.
+    pub profile: Vec<ProfileHour>,
+}
+
+/// One variant's operation in its worst month.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct OperationRow {
+    /// Variant name.
+    pub name: String,
+    /// Feed mode.
+    pub feed: String,
+    /// Flush mode.
+    pub flush: String,
+    /// Set depth \[mm\].
+    pub set_depth_mm: f64,
+    /// Feed per day \[L\].
+    pub feed_l_day: f64,
+    /// Brine flushed per day \[L\].
+    pub flush_l_day: f64,
+    /// Peak salinity [g kg⁻¹].
+    pub peak_salinity_g_kg: f64,
+    /// Hours below the wetting depth \[h\].
+    pub dry_out_h: f64,
+    /// Scaling warnings.
+    pub warnings: Vec<String>,
+}
+
+/// One hour of the charted day.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ProfileHour {
+    /// Solar time \[h\].
+    pub solar_hour_h: f64,
+    /// Brine depth \[mm\].
+    pub depth_mm: f64,
+    /// Salinity [g kg⁻¹].
+    pub salinity_g_kg: f64,
+    /// Distillate over the hour \[L\].
+    pub distillate_l: f64,
+}
+
+/// Brine and salt leaving each basin variant.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EnvironmentSection {
+    /// Per ranked variant with a basin, for the sized array.
+    pub variants: Vec<EnvironmentRow>,
+}
+
+/// One variant's discharge.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EnvironmentRow {
+    /// Variant name.
+    pub name: String,
+    /// Units in the sized array.
+    pub units: u64,
+    /// Brine discharged by the array, mean over the year \[L day⁻¹\].
+    pub brine_l_day: f64,
+    /// Salt returned by the array per year [kg year⁻¹].
+    pub salt_kg_year: f64,
+}
+
+/// What a reviewer needs to regenerate every figure.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ReproducibilitySection {
+    /// stillbench version.
+    pub version: String,
+    /// Design file (or "built-in demo").
+    pub design_file: String,
+    /// SHA-256 of the design file's bytes (hex).
+    pub design_sha256: String,
+    /// Materials library file.
+    pub library_file: String,
+    /// SHA-256 of the materials library's bytes (hex).
+    pub library_sha256: String,
+    /// Random seed given.
+    pub seed: u64,
+    /// Date of generation.
+    pub date: String,
+    /// The command that regenerates the report.
+    pub command: String,
+}
+
+/// Safety cautions.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct CautionsSection {
+    /// The short cautions every result carries.
+    pub short: Vec<String>,
+    /// The report's long-form cautions, each with a heading.
+    pub long: Vec<CautionItem>,
+    /// Calcium to aim for after remineralisation [mg L⁻¹].
+    pub calcium_min_mg_l: f64,
+    /// Magnesium to aim for after remineralisation [mg L⁻¹].
+    pub magnesium_min_mg_l: f64,
+}
+
+/// One caution with a heading.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct CautionItem {
+    /// Heading.
+    pub heading: String,
+    /// Text.
+    pub text: String,
+}
+
+/// One cited source.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Reference {
+    /// Citation key used in the text, e.g. `Dunkle 1961`.
+    pub key: String,
+    /// Full citation.
+    pub text: String,
+}
+
+/// A chart the templates can link.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ChartRef {
+    /// Path relative to the report folder (`charts/<name>.svg`).
+    pub file: String,
+    /// Title.
+    pub title: String,
+}
+
+/// Hook for the Monte Carlo stage: yield ranges per variant.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct UncertaintySection {
+    /// Samples drawn.
+    pub samples: u32,
+    /// Seed.
+    pub seed: u64,
+    /// One row per variant, ranking order.
+    pub variants: Vec<UncertaintyRow>,
+    /// What the model-form term is and how large it was taken.
+    pub model_form_note: String,
+}
+
+/// P10/P50/P90 of one variant.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct UncertaintyRow {
+    /// Variant name.
+    pub name: String,
+    /// Annual yield P10/P50/P90 [L m⁻² year⁻¹].
+    pub annual_l_m2: [f64; 3],
+    /// Worst-month yield P10/P50/P90 [L m⁻² day⁻¹].
+    pub worst_month_l_m2_day: [f64; 3],
+}
+
+/// Hook for the sensitivity stage: tornado bars of one variant.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SensitivitySection {
+    /// Variant analysed.
+    pub variant: String,
+    /// Output the bars move, with unit (e.g. "annual yield [L/m²/year]").
+    pub output: String,
+    /// Output at the base values.
+    pub base: f64,
+    /// Bars, largest swing first.
+    pub bars: Vec<TornadoBar>,
+}
+
+/// One parameter's swing.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct TornadoBar {
+    /// Parameter name with unit.
+    pub parameter: String,
+    /// Output with the parameter at its low value.
+    pub low: f64,
+    /// Output with the parameter at its high value.
+    pub high: f64,
+}
+
+/// Hook for validation: predicted against measured.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ValidationSection {
+    /// Rows.
+    pub rows: Vec<ValidationRow>,
+}
+
+/// One device or pilot still compared.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ValidationRow {
+    /// Device or pilot.
+    pub device: String,
+    /// Source of the measurement.
+    pub source: String,
+    /// Measured [L m⁻² day⁻¹].
+    pub measured_l_m2_day: f64,
+    /// Predicted [L m⁻² day⁻¹].
+    pub predicted_l_m2_day: f64,
+}
+
+/// Hook for `[[alternative]]` entries.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct AlternativesSection {
+    /// Rows, the recommended still first.
+    pub rows: Vec<AlternativeRow>,
+}
+
+/// One way of getting drinking water.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct AlternativeRow {
+    /// Name (user text).
+    pub name: String,
+    /// Cost per litre [currency L⁻¹].
+    pub cost_per_l: f64,
+    /// What it removes.
+    pub removes: String,
+    /// What it does not remove.
+    pub does_not_remove: String,
+}
+
+/// Hook for `[[risk]]` entries.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RisksSection {
+    /// Rows.
+    pub rows: Vec<RiskRow>,
+}
+
+/// One failure mode.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct RiskRow {
+    /// Failure mode.
+    pub failure: String,
+    /// Likelihood (words).
+    pub likelihood: String,
+    /// Impact (words).
+    pub impact: String,
+    /// Mitigation.
+    pub mitigation: String,
+}
