@@ -397,31 +397,7 @@ pub fn drawing(v: &Variant, lib: &Library) -> Drawing {
                 .unwrap_or_else(|| k.basin.default_thickness_mm());
             let ins = layers_mm(&k.base_insulation);
             basin_section(&mut s, sec, w, floor, ins, k.basin, k.brine_depth_mm);
-            s.line(sec, "wall", (0.0, 0.0), (0.0, hf));
-            s.line(sec, "wall", (w, 0.0), (w, hb));
-            s.line(sec, "cover", (0.0, hf), (w, hb));
-            trough_mark(&mut s, sec, (0.0, hf), 1.0);
-            s.angle(sec, (0.0, hf), 0.0, tilt, w * 0.25, "cover tilt", tilt);
-            s.dim_v(
-                sec,
-                -2.0 * fs,
-                0.0,
-                hf,
-                true,
-                "front wall",
-                format!("{hf:.0}"),
-                hf,
-            );
-            s.dim_v(
-                sec,
-                w + 2.0 * fs,
-                0.0,
-                hb,
-                false,
-                "back wall",
-                format!("{hb:.0}"),
-                hb,
-            );
+            single_cover_walls(&mut s, sec, w, hf, hb, 0.0, tilt);
             s.dim_h(sec, 0.0, w, -(floor + ins) - 2.5 * fs, "width", w);
             s.text(
                 sec,
@@ -575,31 +551,7 @@ pub fn drawing(v: &Variant, lib: &Library) -> Drawing {
                 );
             }
             let last_floor = f64::from(n - 1) * r;
-            s.line(sec, "wall", (0.0, 0.0), (0.0, hf));
-            s.line(sec, "wall", (w, last_floor), (w, hb));
-            s.line(sec, "cover", (0.0, hf), (w, hb));
-            trough_mark(&mut s, sec, (0.0, hf), 1.0);
-            s.angle(sec, (0.0, hf), 0.0, tilt, w * 0.25, "cover tilt", tilt);
-            s.dim_v(
-                sec,
-                -2.0 * fs,
-                0.0,
-                hf,
-                true,
-                "front wall",
-                format!("{hf:.0}"),
-                hf,
-            );
-            s.dim_v(
-                sec,
-                w + 2.0 * fs,
-                0.0,
-                hb,
-                false,
-                "back wall",
-                format!("{hb:.0}"),
-                hb,
-            );
+            single_cover_walls(&mut s, sec, w, hf, hb, last_floor, tilt);
             if n > 1 {
                 s.dim_v(
                     sec,
@@ -828,6 +780,47 @@ fn basin_section(
         "mm",
         &format!("{floor:.0}"),
         false,
+    );
+}
+
+/// The walls and the one tilted cover of a single-cover still (basin or stepped) in section:
+/// front wall `hf` high from the floor, back wall from `back_floor` up to `hb`, the cover
+/// between their tops with its trough and tilt mark, and both wall heights dimensioned
+/// [mm of still].
+fn single_cover_walls(
+    s: &mut Sheet,
+    sec: View,
+    w: f64,
+    hf: f64,
+    hb: f64,
+    back_floor: f64,
+    tilt: f64,
+) {
+    let fs = s.fs;
+    s.line(sec, "wall", (0.0, 0.0), (0.0, hf));
+    s.line(sec, "wall", (w, back_floor), (w, hb));
+    s.line(sec, "cover", (0.0, hf), (w, hb));
+    trough_mark(s, sec, (0.0, hf), 1.0);
+    s.angle(sec, (0.0, hf), 0.0, tilt, w * 0.25, "cover tilt", tilt);
+    s.dim_v(
+        sec,
+        -2.0 * fs,
+        0.0,
+        hf,
+        true,
+        "front wall",
+        format!("{hf:.0}"),
+        hf,
+    );
+    s.dim_v(
+        sec,
+        w + 2.0 * fs,
+        0.0,
+        hb,
+        false,
+        "back wall",
+        format!("{hb:.0}"),
+        hb,
     );
 }
 
