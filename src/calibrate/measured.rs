@@ -35,12 +35,11 @@
 
 use std::path::{Path, PathBuf};
 
-use chrono::{DateTime, NaiveDateTime};
 use serde::Serialize;
 
 use crate::climate::file::{
     Column, ColumnMap, FileFormat, GapFill, PeriodConvention, PoaColumn, WeatherFileSpec,
-    parse_weather_bytes,
+    parse_timestamp, parse_weather_bytes,
 };
 use crate::climate::{ClimateError, Plane, SiteLocation, WeatherSeries};
 use crate::design::{DesignErrors, DesignIssue, DistillateCounting, MeasuredColumns, Period};
@@ -220,36 +219,6 @@ fn fail(path: &Path, line: Option<usize>, field: &str, message: String) -> Error
     Error::Design(DesignErrors(vec![issue(path, line, field, message)]))
 }
 
-/// Minutes of the site's standard time for a stamp; naive stamps are at `naive_offset_h`.
-fn stamp_minutes(s: &str, naive_offset_h: f64, site_offset_h: f64) -> Option<i64> {
-    let s = s.trim();
-    let site = (site_offset_h * 60.0).round() as i64;
-    if let Ok(t) = DateTime::parse_from_rfc3339(s) {
-        return Some(t.naive_utc().and_utc().timestamp().div_euclid(60) + site);
-    }
-    for fmt in [
-        "%Y-%m-%d %H:%M:%S%:z",
-        "%Y-%m-%dT%H:%M%:z",
-        "%Y-%m-%d %H:%M%:z",
-    ] {
-        if let Ok(t) = DateTime::parse_from_str(s, fmt) {
-            return Some(t.naive_utc().and_utc().timestamp().div_euclid(60) + site);
-        }
-    }
-    for fmt in [
-        "%Y-%m-%dT%H:%M:%S",
-        "%Y-%m-%d %H:%M:%S",
-        "%Y-%m-%dT%H:%M",
-        "%Y-%m-%d %H:%M",
-    ] {
-        if let Ok(t) = NaiveDateTime::parse_from_str(s, fmt) {
-            let naive = (naive_offset_h * 60.0).round() as i64;
-            return Some(t.and_utc().timestamp().div_euclid(60) - naive + site);
-        }
-    }
-    None
-}
-
 /// One parsed row.
 #[derive(Debug, Clone)]
 struct Row {
@@ -382,7 +351,7 @@ pub fn parse_measured_bytes(
             .map_or(summary.rows + 1, |p| p.line() as usize);
         let Some(t) = rec
             .get(c_time)
-            .and_then(|s| stamp_minutes(s, naive_offset, site.utc_offset_h))
+            .and_then(|s| parse_timestamp(s, naive_offset, site.utc_offset_h))
         else {
             summary.rejected_rows.push(RowIssue {
                 line,

@@ -629,8 +629,10 @@ fn offset_minutes(h: f64) -> i64 {
     (h * 60.0).round() as i64
 }
 
-/// Parse a timestamp into minutes of the site's standard time.
-fn parse_timestamp(s: &str, naive_offset_h: f64, site_offset_h: f64) -> Option<i64> {
+/// Parse a timestamp into minutes of the site's standard time (RFC 3339 or with an offset;
+/// a trailing `Z` is UTC; naive stamps are at `naive_offset_h`). Shared with the pilot-record
+/// reader of `calibrate`.
+pub(crate) fn parse_timestamp(s: &str, naive_offset_h: f64, site_offset_h: f64) -> Option<i64> {
     let s = s.trim();
     let site = offset_minutes(site_offset_h);
     if let Ok(t) = DateTime::parse_from_rfc3339(s) {
