@@ -17,6 +17,7 @@ pub mod charts;
 pub mod context;
 pub mod references;
 pub mod render;
+pub mod stages;
 pub mod tables;
 
 use std::collections::BTreeMap;
@@ -24,10 +25,13 @@ use std::fs;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-pub use build::{DemandChoice, ReportOptions, build_context, report_date, sha256_hex};
+pub use build::{
+    DemandChoice, ReportOptions, build_context, build_context_with, report_date, sha256_hex,
+};
 pub use charts::Chart;
 pub use context::ReportContext;
 pub use render::Templates;
+pub use stages::SheetChoice;
 
 use crate::design::{DEMO_DESIGN, DEMO_LIBRARY, LoadedDesign};
 use crate::error::Error;
@@ -56,11 +60,12 @@ pub fn input_bytes(loaded: &LoadedDesign, demo: bool) -> Result<(Vec<u8>, Vec<u8
 ///
 /// Errors: [`Error::Model`] when a chart cannot be drawn (a plotting failure).
 pub fn attach_charts(ctx: &mut ReportContext) -> Result<Vec<Chart>, Error> {
-    let charts = charts::draw_all(ctx).map_err(|reason| Error::Model {
+    let mut charts = charts::draw_all(ctx).map_err(|reason| Error::Model {
         variant: String::new(),
         at: String::new(),
         reason: format!("drawing the report's charts: {reason}"),
     })?;
+    charts.extend(stages::drawing_charts(&ctx.workshops));
     ctx.charts = charts
         .iter()
         .map(|c| {
