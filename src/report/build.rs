@@ -650,8 +650,9 @@ fn assumptions(loaded: &LoadedDesign) -> Vec<String> {
              check on a day of {} kWh/m².",
             c.commissioning_kwh_m2_day
         ),
-        "Sizing here uses the mean year (every day of a month makes that month's average-day \
-         output); `stillbench size` sizes over stochastic weather years at a confidence."
+        "The first sizing uses the mean year (every day of a month makes that month's \
+         average-day output); where stated, the recommended variant is also sized over \
+         stochastic weather years at a confidence, as `stillbench size` does."
             .into(),
     ]
 }

@@ -3,9 +3,9 @@
 //! Templates (`templates/*.md`) read these structs by field name, so a user can change
 //! wording, order or language without Rust. Sections whose data comes from stages that are
 //! not part of every run are `Option`s and render only when present: [`UncertaintySection`],
-//! [`SensitivitySection`], [`ValidationSection`], [`AlternativesSection`], [`RisksSection`]
-//! and the workshop sheet ([`ReportContext::workshop`]). A stage that produces one of them
-//! fills the field after [`build_context`] and before rendering.
+//! [`SensitivitySection`], [`ValidationSection`], [`AlternativesSection`], [`RisksSection`],
+//! [`SummarySection::confident`]; the fabricator sheets are [`ReportContext::workshops`].
+//! [`build_context`] fills them through [`super::stages`] as the options ask.
 
 use serde::Serialize;
 

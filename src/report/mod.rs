@@ -8,9 +8,10 @@
 //! HTML body with the charts inlined → the `report.html` shell adds the CSS. [`write_report`]
 //! builds all files in a temporary folder beside the target and renames it into place.
 //!
-//! Stages that are not part of every run (Monte Carlo uncertainty, sensitivity, validation,
-//! alternatives, risks, the workshop sheet) plug in by filling their `Option` field of the
-//! context before [`write_report`]; their template sections are already written.
+//! The sections that come from other stages (Monte Carlo uncertainty and sensitivity, sizing
+//! over weather years, validation, alternatives, risks, the workshop sheets) are filled by
+//! [`stages`] inside [`build::build_context`] as [`ReportOptions`] asks; a caller may still
+//! replace any of them before [`write_report`].
 
 pub mod build;
 pub mod charts;
