@@ -122,7 +122,8 @@ pub fn uncertainty_sections(
 /// Size variant `index` over `years` stochastic weather years of `seed` at `confidence`
 /// (`stillbench size`'s rules). `Ok(Err(reason))` when it cannot be sized.
 ///
-/// Errors: those of the simulation and of [`size_from_years`].
+/// Errors: [`Error::Design`] naming the option (`--confidence`, `--years`) when out of range;
+/// those of the simulation and of [`size_from_years`].
 pub fn confident_sizing(
     loaded: &LoadedDesign,
     index: usize,
@@ -138,7 +139,9 @@ pub fn confident_sizing(
         seed,
     };
     if let Err((option, message)) = opts.validate() {
-        return Ok(Err(format!("{option}: {message}")));
+        return Err(crate::compare::uncertainty::option_error(
+            loaded, &option, message,
+        ));
     }
     let model = weather_model(loaded)?;
     let base = stills::site_weather(loaded)?;

@@ -907,3 +907,19 @@ fn validation_rows_rerun_published_devices() {
     assert!(v.rows.iter().all(|r| r.predicted_l_m2_day.is_none()));
     assert!(v.calibrated.is_empty(), "the demo carries no calibration");
 }
+
+#[test]
+fn out_of_range_confidence_and_samples_are_refused() {
+    let tmp = tempfile::tempdir().unwrap();
+    for (args, option) in [
+        (["--confidence", "1.5"], "--confidence"),
+        (["--samples", "2000000"], "--samples"),
+    ] {
+        let out = tmp.path().join(option.trim_start_matches('-'));
+        let o = run_report(None, &out, &args);
+        assert_eq!(o.status.code(), Some(2), "{o:?}");
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert!(err.contains(option), "{err}");
+        assert!(!out.exists());
+    }
+}
