@@ -4,8 +4,10 @@
 
 use std::path::PathBuf;
 
+use stillbench::compare::size::{DEFAULT_CONFIDENCE, DEFAULT_YEARS};
+use stillbench::compare::uncertainty::DEFAULT_SAMPLES;
 use stillbench::design::DRINKING_L_PER_PERSON_DAY;
-use stillbench::report::{self, DemandChoice, ReportOptions, Templates};
+use stillbench::report::{self, DemandChoice, ReportOptions, SheetChoice, Templates};
 
 /// Arguments of `report`.
 #[derive(Debug, clap::Args)]
@@ -17,6 +19,12 @@ use stillbench::report::{self, DemandChoice, ReportOptions, Templates};
     kept unless --force is given. Templates (Markdown with placeholders) can be copied from\n\
     the project's templates/ folder, edited and given with --templates.\n\
     SOURCE_DATE_EPOCH (seconds since 1970) fixes the date printed in the report.\n\n\
+    The yield ranges (P10/P50/P90) and the tornado chart come from the same Monte Carlo as\n\
+    `stillbench uncertainty` (--samples, --seed: same figures for the same values); the\n\
+    recommended variant is also sized over --years stochastic weather years at --confidence\n\
+    (as `stillbench size`, same seed). The workshop sheet is the recommended variant's unless\n\
+    --sheet names others. Published-device comparisons are rerun when their reconstructed\n\
+    designs are found in tests/data/validation/ (a source checkout).\n\n\
     Examples:\n  stillbench report\n  stillbench report designs/demo-coast.toml --out reports/coast --force\n  \
     stillbench report designs/demo-coast.toml --people 200 --litres-per-person 3"
 )]
@@ -32,9 +40,25 @@ pub struct ReportArgs {
     /// Folder of templates replacing the built-in ones file by file.
     #[arg(long, value_name = "DIR")]
     pub templates: Option<PathBuf>,
-    /// Seed recorded in the report and given to its stochastic parts.
+    /// Seed recorded in the report and given to its stochastic parts (Monte Carlo and
+    /// weather years).
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
+    /// Monte Carlo samples for the yield ranges and the tornado, 0…1000000 (0: none); the
+    /// default is `stillbench uncertainty`'s.
+    #[arg(long, value_name = "N", default_value_t = DEFAULT_SAMPLES)]
+    pub samples: u32,
+    /// Stochastic weather years over which the recommended variant is sized at --confidence
+    /// (0: the mean year only); the default is `stillbench size`'s.
+    #[arg(long, value_name = "N", default_value_t = DEFAULT_YEARS)]
+    pub years: u32,
+    /// Fraction of weather years in which the sized array must meet the demand.
+    #[arg(long, value_name = "F", default_value_t = DEFAULT_CONFIDENCE)]
+    pub confidence: f64,
+    /// Variant whose workshop sheet to include (repeatable), or `all`; default the
+    /// recommended variant's.
+    #[arg(long, value_name = "NAME")]
+    pub sheet: Vec<String>,
     /// People served (instead of the design's demand).
     #[arg(long, value_name = "N", conflicts_with = "demand")]
     pub people: Option<u32>,
@@ -88,14 +112,43 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<()> {
     if let Some(d) = args.demand {
         command.push_str(&format!(" --demand {d}"));
     }
+    command.push_str(&format!(
+        " --samples {} --years {} --confidence {}",
+        args.samples, args.years, args.confidence
+    ));
+    for s in &args.sheet {
+        command.push_str(&format!(" --sheet {s:?}"));
+    }
+    let sheets = if args.sheet.is_empty() {
+        SheetChoice::Recommended
+    } else if args.sheet.iter().any(|s| s == "all") {
+        SheetChoice::All
+    } else {
+        SheetChoice::Named(args.sheet.clone())
+    };
     let opts = ReportOptions {
-        seed: args.seed,
-        demand,
-        date: report::report_date(std::env::var("SOURCE_DATE_EPOCH").ok().as_deref()),
-        command,
+        samples: args.samples,
+        sizing_years: args.years,
+        confidence: args.confidence,
+        sheets,
+        validation_dirs: vec![PathBuf::from("tests/data/validation")],
+        ..ReportOptions::quick(
+            args.seed,
+            demand,
+            report::report_date(std::env::var("SOURCE_DATE_EPOCH").ok().as_deref()),
+            command,
+        )
     };
     let (design_bytes, library_bytes) = report::input_bytes(&loaded, args.design.is_none())?;
-    let mut ctx = report::build_context(&loaded, &design_bytes, &library_bytes, &opts)?;
+    let bar = super::uncertainty::progress_bar();
+    let tick = |done: u64, total: u64| {
+        bar.set_length(total);
+        bar.set_position(done);
+    };
+    let built =
+        report::build_context_with(&loaded, &design_bytes, &library_bytes, &opts, Some(&tick));
+    bar.finish_and_clear();
+    let mut ctx = built?;
     let charts = report::attach_charts(&mut ctx)?;
     let files = report::write_report(&ctx, &charts, &templates, &out, args.force)?;
     println!(
@@ -109,8 +162,14 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<()> {
             .count()
     );
     println!(
-        "recommended: {} ({} units for {:.0} L/day)",
+        "recommended: {} ({} units for {:.0} L/day in the mean year's worst month)",
         ctx.summary.recommended, ctx.summary.sizing.units, ctx.need.demand_l_day
     );
+    if let Some(c) = &ctx.summary.confident {
+        println!(
+            "at confidence {}: {} units, storage {:.0} L ({} weather years, seed {})",
+            c.confidence, c.units, c.storage_l, c.years, c.seed
+        );
+    }
     Ok(())
 }

@@ -6,8 +6,10 @@ use std::collections::BTreeMap;
 use sha2::{Digest, Sha256};
 
 use super::context::*;
+use super::stages::{self, SheetChoice};
 use crate::cautions;
 use crate::compare::size::{SizeOptions, UnitYear, size_from_years};
+use crate::compare::uncertainty::{Progress, UncertaintyOptions};
 use crate::compare::{self, DesignEvaluation, Evaluation, Scales, Weights};
 use crate::design::{
     Climate, DAYS_IN_MONTH, DRINKING_AND_COOKING_L_PER_PERSON_DAY, DRINKING_L_PER_PERSON_DAY,
@@ -53,6 +55,35 @@ pub struct ReportOptions {
     pub date: String,
     /// The command line that regenerates the report (recorded, not run).
     pub command: String,
+    /// Monte Carlo samples for the yield ranges and the tornado (0: no Monte Carlo).
+    pub samples: u32,
+    /// Stochastic weather years for sizing the recommended variant at
+    /// [`ReportOptions::confidence`] (0: the mean-year sizing only).
+    pub sizing_years: u32,
+    /// Fraction of weather years in which the sized array must meet the demand [-].
+    pub confidence: f64,
+    /// Which variants get a fabricator sheet.
+    pub sheets: SheetChoice,
+    /// Folders searched for the published devices' reconstructed designs.
+    pub validation_dirs: Vec<std::path::PathBuf>,
+}
+
+impl ReportOptions {
+    /// Options with no stochastic stage (no Monte Carlo, mean-year sizing only), the
+    /// recommended variant's sheet, and no validation folder.
+    pub fn quick(seed: u64, demand: DemandChoice, date: String, command: String) -> Self {
+        Self {
+            seed,
+            demand,
+            date,
+            command,
+            samples: 0,
+            sizing_years: 0,
+            confidence: crate::compare::size::DEFAULT_CONFIDENCE,
+            sheets: SheetChoice::Recommended,
+            validation_dirs: Vec::new(),
+        }
+    }
 }
 
 /// The date for a report: `SOURCE_DATE_EPOCH` (seconds since 1970, UTC) when set and valid,
@@ -198,6 +229,22 @@ pub fn build_context(
     library_bytes: &[u8],
     opts: &ReportOptions,
 ) -> Result<ReportContext, Error> {
+    build_context_with(loaded, design_bytes, library_bytes, opts, None)
+}
+
+/// [`build_context`] with a progress callback for the Monte Carlo (its fitting runs, then its
+/// samples), as `stillbench uncertainty` reports it.
+///
+/// Besides the errors of [`build_context`]: those of [`compare::run_uncertainty`] (with the
+/// same options as `stillbench uncertainty --samples N --seed S`), of the stochastic sizing
+/// and of the workshop sheets.
+pub fn build_context_with(
+    loaded: &LoadedDesign,
+    design_bytes: &[u8],
+    library_bytes: &[u8],
+    opts: &ReportOptions,
+    progress: Option<Progress<'_>>,
+) -> Result<ReportContext, Error> {
     let (demand_l_day, people, per_person, demand_from) = resolve_demand(loaded, opts.demand)?;
     let weather: SiteWeather = stills::site_weather(loaded)?;
     let ev: DesignEvaluation = compare::evaluate_design(loaded, &weather, &RunOptions::default())?;
@@ -299,6 +346,7 @@ pub fn build_context(
         sizing: top_size,
         cost_per_person_year,
         not_ranked,
+        confident: None,
     };
 
     let need = NeedSection {
@@ -455,6 +503,42 @@ pub fn build_context(
         calcium_min_mg_l: cautions::REMINERALISED_CALCIUM_MIN_MG_L,
         magnesium_min_mg_l: cautions::REMINERALISED_MAGNESIUM_MIN_MG_L,
     };
+    // Sheets first: a wrong --sheet name is refused before the stochastic stages run.
+    let workshops = stages::workshop_sheets(loaded, &ordered, &opts.sheets)?;
+    let mut summary = summary;
+    if opts.sizing_years > 0 {
+        let top_idx = ordered.first().map_or(0, |(i, _)| *i);
+        match stages::confident_sizing(
+            loaded,
+            top_idx,
+            demand_l_day,
+            opts.confidence,
+            opts.sizing_years,
+            opts.seed,
+        )? {
+            Ok(c) => summary.confident = Some(c),
+            Err(reason) => summary.not_ranked.push(NotRanked {
+                name: top.name.clone(),
+                reason: format!("not sized over weather years: {reason}"),
+            }),
+        }
+    }
+    let (uncertainty, sensitivity) = if opts.samples > 0 {
+        let uo = UncertaintyOptions {
+            samples: opts.samples,
+            seed: opts.seed,
+            ..UncertaintyOptions::default()
+        };
+        let rep = compare::run_uncertainty(loaded, &uo, progress)?;
+        let order: Vec<String> = ranking.iter().map(|r| r.name.clone()).collect();
+        let (u, s) = stages::uncertainty_sections(&rep, &order, &first.name);
+        (Some(u), s)
+    } else {
+        (None, None)
+    };
+    let alternatives = stages::alternatives_section(loaded, top);
+    let risks = Some(stages::risks_section(loaded));
+    let validation = Some(stages::validation_section(loaded, &opts.validation_dirs));
     Ok(ReportContext {
         meta: MetaSection {
             title: loaded.design.project.title.clone(),
@@ -485,12 +569,12 @@ pub fn build_context(
             })
             .collect(),
         charts: BTreeMap::new(),
-        uncertainty: None,
-        sensitivity: None,
-        validation: None,
-        alternatives: None,
-        risks: None,
-        workshop: None,
+        uncertainty,
+        sensitivity,
+        validation,
+        alternatives,
+        risks,
+        workshops,
     })
 }
 
@@ -566,8 +650,9 @@ fn assumptions(loaded: &LoadedDesign) -> Vec<String> {
              check on a day of {} kWh/m².",
             c.commissioning_kwh_m2_day
         ),
-        "Sizing here uses the mean year (every day of a month makes that month's average-day \
-         output); `stillbench size` sizes over stochastic weather years at a confidence."
+        "The first sizing uses the mean year (every day of a month makes that month's \
+         average-day output); where stated, the recommended variant is also sized over \
+         stochastic weather years at a confidence, as `stillbench size` does."
             .into(),
     ]
 }

@@ -3,13 +3,15 @@
 //! Templates (`templates/*.md`) read these structs by field name, so a user can change
 //! wording, order or language without Rust. Sections whose data comes from stages that are
 //! not part of every run are `Option`s and render only when present: [`UncertaintySection`],
-//! [`SensitivitySection`], [`ValidationSection`], [`AlternativesSection`], [`RisksSection`]
-//! and the workshop sheet ([`ReportContext::workshop`]). A stage that produces one of them
-//! fills the field after [`build_context`] and before rendering.
+//! [`SensitivitySection`], [`ValidationSection`], [`AlternativesSection`], [`RisksSection`],
+//! [`SummarySection::confident`]; the fabricator sheets are [`ReportContext::workshops`].
+//! [`build_context`] fills them through [`super::stages`] as the options ask.
 
 use serde::Serialize;
 
 use crate::compare::Ranked;
+use crate::design::CalibrationFactors;
+use crate::workshop::WorkshopSheet;
 
 /// Everything a report template can read.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -51,9 +53,10 @@ pub struct ReportContext {
     pub alternatives: Option<AlternativesSection>,
     /// Hook: failure modes with likelihood, impact and mitigation (`[[risk]]`), when given.
     pub risks: Option<RisksSection>,
-    /// Hook: the fabricator sheet, serialised by the workshop stage and rendered by the
-    /// `workshop.md` template (included only when this is present and that template exists).
-    pub workshop: Option<serde_json::Value>,
+    /// The fabricator sheets (the recommended variant's by default, others on request), each
+    /// rendered by the `workshop.md` template under the name `workshop`; each drawing is also
+    /// in [`ReportContext::charts`] under its SVG id, so the HTML inlines it.
+    pub workshops: Vec<WorkshopSheet>,
 }
 
 /// Title, date and version.
@@ -100,6 +103,38 @@ pub struct SummarySection {
     pub cost_per_person_year: f64,
     /// Variants that could not be ranked, with why.
     pub not_ranked: Vec<NotRanked>,
+    /// The recommended variant sized over stochastic weather years at a confidence, when run.
+    pub confident: Option<ConfidentSizing>,
+}
+
+/// The recommended variant sized over stochastic weather years at a confidence (the rules of
+/// `stillbench size`).
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ConfidentSizing {
+    /// Variant name.
+    pub name: String,
+    /// Fraction of weather years in which the demand must be met [-].
+    pub confidence: f64,
+    /// Stochastic weather years simulated.
+    pub years: u32,
+    /// Seed of the weather generator.
+    pub seed: u64,
+    /// Whole units.
+    pub units: u64,
+    /// Footprint of all units [m²].
+    pub footprint_m2: f64,
+    /// Land with row spacing against noon shading in the worst month [m²].
+    pub land_m2: f64,
+    /// Storage that rides through runs of low-output days at the confidence \[L\].
+    pub storage_l: f64,
+    /// Longest run of low-output days at the confidence [days].
+    pub longest_low_run_days: u32,
+    /// Capital of all units [currency].
+    pub capital: f64,
+    /// Fraction of the simulated years the array meets [-].
+    pub met_fraction: f64,
+    /// Worst-month output of the array in the year that set the size [L day⁻¹].
+    pub array_worst_month_l_day: f64,
 }
 
 /// A variant left out, and why.
@@ -423,6 +458,10 @@ pub struct UncertaintySection {
     pub variants: Vec<UncertaintyRow>,
     /// What the model-form term is and how large it was taken.
     pub model_form_note: String,
+    /// Relative SD of the model-form factor used [-].
+    pub model_form_sd: f64,
+    /// Where that SD comes from.
+    pub model_form_source: String,
 }
 
 /// P10/P50/P90 of one variant.
@@ -460,11 +499,18 @@ pub struct TornadoBar {
     pub high: f64,
 }
 
-/// Hook for validation: predicted against measured.
+/// Validation: the default model against published devices, how that sizes the model-form
+/// term, and the variants calibrated to a pilot still.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct ValidationSection {
     /// Rows.
     pub rows: Vec<ValidationRow>,
+    /// Model-form relative SD the comparisons give [-] (the calibration module's constant).
+    pub model_form_sd: f64,
+    /// How the comparisons size the model-form term, in words.
+    pub note: String,
+    /// Variants whose design carries `[variant.calibration]`.
+    pub calibrated: Vec<CalibratedVariant>,
 }
 
 /// One device or pilot still compared.
@@ -474,15 +520,37 @@ pub struct ValidationRow {
     pub device: String,
     /// Source of the measurement.
     pub source: String,
-    /// Measured [L m⁻² day⁻¹].
+    /// The conditions reconstructed from the source, and what it leaves unsaid.
+    pub conditions: String,
+    /// Measured (published) [L m⁻² day⁻¹].
     pub measured_l_m2_day: f64,
-    /// Predicted [L m⁻² day⁻¹].
-    pub predicted_l_m2_day: f64,
+    /// Predicted by the default model [L m⁻² day⁻¹]; `None` when the reconstructed design
+    /// could not be run here.
+    pub predicted_l_m2_day: Option<f64>,
+    /// predicted ÷ measured − 1 [-], when predicted.
+    pub error: Option<f64>,
+}
+
+/// A variant whose model carries factors fitted to a pilot still.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct CalibratedVariant {
+    /// Variant name.
+    pub name: String,
+    /// The factors in force.
+    pub factors: CalibrationFactors,
+    /// What they were fitted from (user text), when stated.
+    pub fitted_from: Option<String>,
+    /// When they were fitted (user text), when stated.
+    pub fitted_on: Option<String>,
+    /// Notes (user text), when stated.
+    pub note: Option<String>,
 }
 
 /// Hook for `[[alternative]]` entries.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct AlternativesSection {
+    /// The recommended still's cost per litre over its life [currency L⁻¹].
+    pub still_cost_per_l: f64,
     /// Rows, the recommended still first.
     pub rows: Vec<AlternativeRow>,
 }
@@ -494,6 +562,8 @@ pub struct AlternativeRow {
     pub name: String,
     /// Cost per litre [currency L⁻¹].
     pub cost_per_l: f64,
+    /// Cost per litre relative to the recommended still's (1 = the same), when that is not 0.
+    pub relative_to_still: Option<f64>,
     /// What it removes.
     pub removes: String,
     /// What it does not remove.

@@ -8,15 +8,17 @@
 //! HTML body with the charts inlined → the `report.html` shell adds the CSS. [`write_report`]
 //! builds all files in a temporary folder beside the target and renames it into place.
 //!
-//! Stages that are not part of every run (Monte Carlo uncertainty, sensitivity, validation,
-//! alternatives, risks, the workshop sheet) plug in by filling their `Option` field of the
-//! context before [`write_report`]; their template sections are already written.
+//! The sections that come from other stages (Monte Carlo uncertainty and sensitivity, sizing
+//! over weather years, validation, alternatives, risks, the workshop sheets) are filled by
+//! [`stages`] inside [`build::build_context`] as [`ReportOptions`] asks; a caller may still
+//! replace any of them before [`write_report`].
 
 pub mod build;
 pub mod charts;
 pub mod context;
 pub mod references;
 pub mod render;
+pub mod stages;
 pub mod tables;
 
 use std::collections::BTreeMap;
@@ -24,10 +26,13 @@ use std::fs;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-pub use build::{DemandChoice, ReportOptions, build_context, report_date, sha256_hex};
+pub use build::{
+    DemandChoice, ReportOptions, build_context, build_context_with, report_date, sha256_hex,
+};
 pub use charts::Chart;
 pub use context::ReportContext;
 pub use render::Templates;
+pub use stages::SheetChoice;
 
 use crate::design::{DEMO_DESIGN, DEMO_LIBRARY, LoadedDesign};
 use crate::error::Error;
@@ -56,11 +61,12 @@ pub fn input_bytes(loaded: &LoadedDesign, demo: bool) -> Result<(Vec<u8>, Vec<u8
 ///
 /// Errors: [`Error::Model`] when a chart cannot be drawn (a plotting failure).
 pub fn attach_charts(ctx: &mut ReportContext) -> Result<Vec<Chart>, Error> {
-    let charts = charts::draw_all(ctx).map_err(|reason| Error::Model {
+    let mut charts = charts::draw_all(ctx).map_err(|reason| Error::Model {
         variant: String::new(),
         at: String::new(),
         reason: format!("drawing the report's charts: {reason}"),
     })?;
+    charts.extend(stages::drawing_charts(&ctx.workshops));
     ctx.charts = charts
         .iter()
         .map(|c| {

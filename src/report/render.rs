@@ -17,7 +17,7 @@ use crate::design::{DesignErrors, DesignIssue};
 use crate::error::Error;
 
 /// The default templates, embedded: (name, text).
-pub const DEFAULT_TEMPLATES: [(&str, &str); 16] = [
+pub const DEFAULT_TEMPLATES: [(&str, &str); 17] = [
     ("report.md", include_str!("../../templates/report.md")),
     ("summary.md", include_str!("../../templates/summary.md")),
     ("need.md", include_str!("../../templates/need.md")),
@@ -49,6 +49,10 @@ pub const DEFAULT_TEMPLATES: [(&str, &str); 16] = [
     ("report.html", include_str!("../../templates/report.html")),
     ("report.css", include_str!("../../templates/report.css")),
     ("sizing.md", include_str!("../../templates/sizing.md")),
+    (
+        crate::workshop::WORKSHOP_TEMPLATE_NAME,
+        crate::workshop::WORKSHOP_TEMPLATE,
+    ),
 ];
 
 /// A template set: the embedded defaults, each replaced by a file of the same name in the

@@ -90,6 +90,39 @@ pub fn tables(ctx: &ReportContext) -> Vec<Table> {
     ] {
         t.rows.push(vec![json!(k), v, json!(u)]);
     }
+    if let Some(u) = ctx
+        .uncertainty
+        .as_ref()
+        .and_then(|u| u.variants.iter().find(|v| v.name == s.recommended))
+    {
+        for (i, p) in ["p10", "p50", "p90"].iter().enumerate() {
+            t.rows.push(vec![
+                json!(format!("annual_l_m2_{p}")),
+                json!(u.annual_l_m2[i]),
+                json!("L/m²/year"),
+            ]);
+        }
+        for (i, p) in ["p10", "p50", "p90"].iter().enumerate() {
+            t.rows.push(vec![
+                json!(format!("worst_month_l_m2_day_{p}")),
+                json!(u.worst_month_l_m2_day[i]),
+                json!("L/m²/day"),
+            ]);
+        }
+    }
+    if let Some(c) = &s.confident {
+        for (k, v, u) in [
+            ("confidence", json!(c.confidence), "-".to_owned()),
+            ("confidence_years", json!(c.years), "years".into()),
+            ("confident_units", json!(c.units), "units".into()),
+            ("confident_footprint_m2", json!(c.footprint_m2), "m²".into()),
+            ("confident_land_m2", json!(c.land_m2), "m²".into()),
+            ("confident_storage_l", json!(c.storage_l), "L".into()),
+            ("confident_capital", json!(c.capital), cur.clone()),
+        ] {
+            t.rows.push(vec![json!(k), v, json!(u)]);
+        }
+    }
     out.push(t);
 
     let mut t = Table::new("need", &["use", "l_per_person_day", "source"]);
@@ -339,12 +372,19 @@ pub fn tables(ctx: &ReportContext) -> Vec<Table> {
     if let Some(a) = &ctx.alternatives {
         let mut t = Table::new(
             "alternatives",
-            &["name", "cost_per_l", "removes", "does_not_remove"],
+            &[
+                "name",
+                "cost_per_l",
+                "relative_to_still",
+                "removes",
+                "does_not_remove",
+            ],
         );
         for r in &a.rows {
             t.rows.push(vec![
                 json!(r.name),
                 json!(r.cost_per_l),
+                json!(r.relative_to_still),
                 json!(r.removes),
                 json!(r.does_not_remove),
             ]);
@@ -369,16 +409,20 @@ pub fn tables(ctx: &ReportContext) -> Vec<Table> {
             &[
                 "device",
                 "source",
+                "conditions",
                 "measured_l_m2_day",
                 "predicted_l_m2_day",
+                "error",
             ],
         );
         for x in &v.rows {
             t.rows.push(vec![
                 json!(x.device),
                 json!(x.source),
+                json!(x.conditions),
                 json!(x.measured_l_m2_day),
                 json!(x.predicted_l_m2_day),
+                json!(x.error),
             ]);
         }
         out.push(t);

@@ -9,8 +9,9 @@ use std::sync::OnceLock;
 
 use assert_cmd::Command;
 use stillbench::report::context::{
-    AlternativeRow, AlternativesSection, RiskRow, RisksSection, SensitivitySection, TornadoBar,
-    UncertaintyRow, UncertaintySection, ValidationRow, ValidationSection,
+    AlternativeRow, AlternativesSection, CalibratedVariant, RiskRow, RisksSection,
+    SensitivitySection, TornadoBar, UncertaintyRow, UncertaintySection, ValidationRow,
+    ValidationSection,
 };
 use stillbench::report::{
     self, DemandChoice, ReportContext, ReportOptions, Templates, render, tables,
@@ -26,12 +27,13 @@ fn demo_context() -> &'static ReportContext {
     CTX.get_or_init(|| {
         let loaded = stillbench::design::load_demo().unwrap();
         let (d, l) = report::input_bytes(&loaded, true).unwrap();
-        let opts = ReportOptions {
-            seed: 7,
-            demand: DemandChoice::FromDesign,
-            date: "2024-01-02".into(),
-            command: "stillbench report".into(),
-        };
+        // No Monte Carlo and no weather years here (they are tested end to end below).
+        let opts = ReportOptions::quick(
+            7,
+            DemandChoice::FromDesign,
+            "2024-01-02".into(),
+            "stillbench report".into(),
+        );
         let mut ctx = report::build_context(&loaded, &d, &l, &opts).unwrap();
         report::attach_charts(&mut ctx).unwrap();
         ctx
@@ -163,7 +165,7 @@ fn every_chart_is_drawn_with_title_and_axes() {
 }
 
 #[test]
-fn demo_markdown_has_every_funder_section_and_no_hook_sections() {
+fn demo_markdown_has_every_funder_section_and_no_monte_carlo_sections() {
     let md = render_md(demo_context());
     for heading in [
         "## In short",
@@ -182,13 +184,20 @@ fn demo_markdown_has_every_funder_section_and_no_hook_sections() {
     ] {
         assert!(md.contains(heading), "missing {heading}");
     }
-    for absent in [
+    // From the design ([[alternative]], [[risk]] merged with the defaults), the workshop
+    // module and the published-device list: always there for the demo.
+    for present in [
         "## Other ways to get drinking water",
         "## What can go wrong",
-        "### What the yield depends on most",
         "### Against measured stills",
-        "P10",
+        "## Workshop sheet: four-stage (multi-effect)",
+        "![Workshop drawing: four-stage (multi-effect), millimetres](charts/sb-drawing-four-stage.svg)",
+        "No variant is calibrated to a pilot still yet",
     ] {
+        assert!(md.contains(present), "missing {present}");
+    }
+    // Only with a Monte Carlo (ReportOptions::quick runs none).
+    for absent in ["### What the yield depends on most", "P10", "confidence |"] {
         assert!(!md.contains(absent), "{absent} shown without data");
     }
     // Cautions (issue 9 item 5) with the remineralisation figures used.
@@ -249,6 +258,8 @@ fn hook_sections_render_when_present() {
             worst_month_l_m2_day: [8.25, 10.0, 11.5],
         }],
         model_form_note: "Model-form spread of 15 % added.".into(),
+        model_form_sd: 0.15,
+        model_form_source: "stated default".into(),
     });
     ctx.sensitivity = Some(SensitivitySection {
         variant: top.clone(),
@@ -268,17 +279,43 @@ fn hook_sections_render_when_present() {
         ],
     });
     ctx.validation = Some(ValidationSection {
-        rows: vec![ValidationRow {
-            device: "pilot still A".into(),
-            source: "site log".into(),
-            measured_l_m2_day: 2.5,
-            predicted_l_m2_day: 2.75,
+        rows: vec![
+            ValidationRow {
+                device: "pilot still A".into(),
+                source: "site log".into(),
+                conditions: "clear June days".into(),
+                measured_l_m2_day: 2.5,
+                predicted_l_m2_day: Some(2.75),
+                error: Some(0.1),
+            },
+            ValidationRow {
+                device: "device B".into(),
+                source: "paper".into(),
+                conditions: "unknown".into(),
+                measured_l_m2_day: 3.0,
+                predicted_l_m2_day: None,
+                error: None,
+            },
+        ],
+        model_form_sd: 0.153,
+        note: "Spread note.".into(),
+        calibrated: vec![CalibratedVariant {
+            name: "pilot <i>".into(),
+            factors: stillbench::design::CalibrationFactors {
+                distillate_factor: 0.85,
+                ..Default::default()
+            },
+            fitted_from: Some("log.csv".into()),
+            fitted_on: None,
+            note: None,
         }],
     });
     ctx.alternatives = Some(AlternativesSection {
+        still_cost_per_l: 0.042,
         rows: vec![AlternativeRow {
             name: "boiling <b>".into(),
             cost_per_l: 0.021,
+            relative_to_still: Some(0.5),
             removes: "germs".into(),
             does_not_remove: "salt".into(),
         }],
@@ -305,8 +342,14 @@ fn hook_sections_render_when_present() {
         md.contains("| cover transmittance \\[-\\] | 3400.00 | 4200.00 |"),
         "{md}"
     );
-    assert!(md.contains("| pilot still A | site log | 2.50 | 2.75 |"));
-    assert!(md.contains("| boiling \\<b\\> | 0.021 | germs | salt |"));
+    assert!(
+        md.contains("| pilot still A | site log | clear June days | 2.50 | 2.75 | 10.0 % |"),
+        "{md}"
+    );
+    assert!(md.contains("| device B | paper | unknown | 3.00 | – | – |"));
+    assert!(md.contains("| pilot \\<i\\> | 0.850 | 1.000 | – | 1.000 | log.csv | not stated |"));
+    assert!(md.contains("costs 0.042 USD per litre over its life"));
+    assert!(md.contains("| boiling \\<b\\> | 0.021 | 0.50 | germs | salt |"));
     assert!(md.contains("| broken cover | medium | high | spare glass |"));
     let names: Vec<String> = tables::tables(&ctx).into_iter().map(|t| t.name).collect();
     for t in [
@@ -322,7 +365,21 @@ fn hook_sections_render_when_present() {
 
 // ---- end to end -------------------------------------------------------------------------
 
+/// `report` with a small Monte Carlo and two weather years unless `extra` sets them (the
+/// defaults, 1000 samples and 20 years, are timed in the closing note, not in tests).
 fn run_report(design: Option<&Path>, out: &Path, extra: &[&str]) -> std::process::Output {
+    let mut small: Vec<&str> = Vec::new();
+    if !extra.contains(&"--samples") {
+        small.extend(["--samples", "30"]);
+    }
+    if !extra.contains(&"--years") {
+        small.extend(["--years", "2"]);
+    }
+    let extra: Vec<&str> = small.into_iter().chain(extra.iter().copied()).collect();
+    run_report_as_given(design, out, &extra)
+}
+
+fn run_report_as_given(design: Option<&Path>, out: &Path, extra: &[&str]) -> std::process::Output {
     let mut cmd = stillbench();
     cmd.arg("report");
     if let Some(d) = design {
@@ -612,7 +669,8 @@ fn browser_renders_demo_report() {
     };
     let tmp = tempfile::tempdir().unwrap();
     let out = tmp.path().join("r");
-    assert!(run_report(None, &out, &[]).status.success());
+    // The report as a user gets it: default samples and weather years.
+    assert!(run_report_as_given(None, &out, &[]).status.success());
     let page = fs::canonicalize(out.join("report.html")).unwrap();
     let url = format!("file://{}", page.display());
     let expected_charts = fs::read_dir(out.join("charts")).unwrap().count();
@@ -629,6 +687,9 @@ fn browser_renders_demo_report() {
     let html = String::from_utf8_lossy(&dom.stdout);
     let svgs: Vec<&str> = html.split("<svg").skip(1).collect();
     assert_eq!(svgs.len(), expected_charts, "charts in the DOM");
+    // The recommended variant's dimensioned drawing and the tornado are among them.
+    assert!(html.contains("id=\"sb-drawing-four-stage\""), "no drawing");
+    assert!(out.join("charts/tornado.svg").is_file());
     for s in &svgs {
         let body = &s[..s.find("</svg>").unwrap()];
         assert!(body.matches("<text").count() > 5, "an empty chart");
@@ -673,4 +734,192 @@ fn browser_renders_demo_report() {
     let bytes = fs::read(&png).unwrap();
     assert!(bytes.starts_with(b"\x89PNG"));
     assert!(bytes.len() > 20_000, "screenshot of {} bytes", bytes.len());
+}
+
+// ---- the stages wired in: Monte Carlo, sizing at a confidence, sheets, validation --------
+
+fn json_file(p: &Path) -> serde_json::Value {
+    serde_json::from_slice(&fs::read(p).unwrap()).unwrap()
+}
+
+fn summary_row(summary: &serde_json::Value, k: &str) -> serde_json::Value {
+    summary["rows"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|r| r[0] == k)
+        .map(|r| r[1].clone())
+        .unwrap_or_else(|| panic!("no summary row {k}"))
+}
+
+/// The report's P10/P50/P90 are `compare --samples N --seed S`'s (the same Monte Carlo with
+/// the same options), its sizing at the confidence is `size --years Y --seed S`'s for the
+/// recommended variant, and `--sheet all` gives one drawing per ranked variant. Exact
+/// equality: the same code on the same inputs (serde_json writes round-trip numbers).
+#[test]
+fn stages_equal_compare_size_and_sheets_all() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("r");
+    let design = Path::new("designs/demo-coast.toml");
+    let o = run_report(
+        Some(design),
+        &out,
+        &[
+            "--samples",
+            "24",
+            "--seed",
+            "3",
+            "--years",
+            "2",
+            "--sheet",
+            "all",
+        ],
+    );
+    assert!(o.status.success(), "{o:?}");
+
+    let cmp = stillbench()
+        .args([
+            "compare",
+            "designs/demo-coast.toml",
+            "--samples",
+            "24",
+            "--seed",
+            "3",
+        ])
+        .args(["--format", "json"])
+        .output()
+        .unwrap();
+    assert!(cmp.status.success(), "{cmp:?}");
+    let cmp: serde_json::Value = serde_json::from_slice(&cmp.stdout).unwrap();
+    let cmp_vars = cmp["uncertainty"]["variants"].as_array().unwrap();
+    let unc = json_file(&out.join("tables/uncertainty.json"));
+    let rows = unc["rows"].as_array().unwrap();
+    assert_eq!(rows.len(), cmp_vars.len());
+    for r in rows {
+        let c = cmp_vars.iter().find(|v| v["name"] == r[0]).unwrap();
+        for (i, p) in ["p10", "p50", "p90"].iter().enumerate() {
+            assert_eq!(r[1 + i], c["annual_l_m2"][p], "{} annual {p}", r[0]);
+            assert_eq!(r[4 + i], c["worst_month_l_m2_day"][p], "{} worst {p}", r[0]);
+        }
+    }
+    let summary = json_file(&out.join("tables/summary.json"));
+    let top = summary_row(&summary, "recommended");
+    let c = cmp_vars.iter().find(|v| v["name"] == top).unwrap();
+    assert_eq!(
+        summary_row(&summary, "annual_l_m2_p10"),
+        c["annual_l_m2"]["p10"]
+    );
+    assert_eq!(
+        summary_row(&summary, "annual_l_m2_p90"),
+        c["annual_l_m2"]["p90"]
+    );
+    assert_eq!(
+        summary_row(&summary, "worst_month_l_m2_day_p50"),
+        c["worst_month_l_m2_day"]["p50"]
+    );
+
+    let size = stillbench()
+        .args([
+            "size",
+            "designs/demo-coast.toml",
+            "--years",
+            "2",
+            "--seed",
+            "3",
+        ])
+        .args(["--format", "json"])
+        .output()
+        .unwrap();
+    assert!(size.status.success(), "{size:?}");
+    let size: serde_json::Value = serde_json::from_slice(&size.stdout).unwrap();
+    let s = size["sized"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|v| v["name"] == top)
+        .unwrap();
+    for (k, sk) in [
+        ("confident_units", "units"),
+        ("confident_footprint_m2", "footprint_m2"),
+        ("confident_land_m2", "land_m2"),
+        ("confident_storage_l", "storage_l"),
+        ("confident_capital", "capital"),
+    ] {
+        assert_eq!(summary_row(&summary, k), s[sk], "{k}");
+    }
+    let md = fs::read_to_string(out.join("report.md")).unwrap();
+    assert!(
+        md.contains("Sized over 2 stochastic weather years (seed 3)"),
+        "{md}"
+    );
+    assert!(md.contains("| at 90 % confidence | value |"));
+    assert!(md.contains("24 samples of weather and uncertain parameters (seed 3)."));
+    assert!(md.contains("### What the yield depends on most"));
+
+    // One sheet and one inlined drawing per ranked variant.
+    let ranked = json_file(&out.join("tables/ranking.json"))["rows"]
+        .as_array()
+        .unwrap()
+        .len();
+    assert_eq!(md.matches("## Workshop sheet: ").count(), ranked);
+    let html = fs::read_to_string(out.join("report.html")).unwrap();
+    assert_eq!(
+        html.matches("<svg xmlns=\"http://www.w3.org/2000/svg\" id=\"sb-drawing-")
+            .count(),
+        ranked
+    );
+    assert!(!html.contains("&lt;svg"), "a drawing escaped as text");
+}
+
+#[test]
+fn unknown_sheet_is_refused_and_writes_nothing() {
+    let tmp = tempfile::tempdir().unwrap();
+    let out = tmp.path().join("r");
+    let o = run_report(None, &out, &["--sheet", "no-such-still"]);
+    assert_eq!(o.status.code(), Some(2), "{o:?}");
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("--sheet") && err.contains("no-such-still"),
+        "{err}"
+    );
+    assert!(!out.exists());
+}
+
+/// The published device is rerun from its reconstructed design when the report runs in a
+/// source checkout (the tests run in the crate root).
+#[test]
+fn validation_rows_rerun_published_devices() {
+    let loaded = stillbench::design::load_demo().unwrap();
+    let v = report::stages::validation_section(&loaded, &[PathBuf::from("tests/data/validation")]);
+    let chennai = v
+        .rows
+        .iter()
+        .find(|r| r.device == "conventional basin, Chennai")
+        .unwrap();
+    // Sathyamurthy et al. (2016), abstract: 1.9 kg/m²/day for the conventional still.
+    assert!((chennai.measured_l_m2_day - 1.9).abs() < 1e-12);
+    let p = chennai.predicted_l_m2_day.unwrap();
+    // ±30 %: issue 10's acceptance band for reconstructed devices.
+    assert!((p / 1.9 - 1.0).abs() <= 0.30, "{p}");
+    assert!(chennai.conditions.contains("not stated and assumed"));
+    // Without the folder, the row stays, with no prediction.
+    let v = report::stages::validation_section(&loaded, &[]);
+    assert!(v.rows.iter().all(|r| r.predicted_l_m2_day.is_none()));
+    assert!(v.calibrated.is_empty(), "the demo carries no calibration");
+}
+
+#[test]
+fn out_of_range_confidence_and_samples_are_refused() {
+    let tmp = tempfile::tempdir().unwrap();
+    for (args, option) in [
+        (["--confidence", "1.5"], "--confidence"),
+        (["--samples", "2000000"], "--samples"),
+    ] {
+        let out = tmp.path().join(option.trim_start_matches('-'));
+        let o = run_report(None, &out, &args);
+        assert_eq!(o.status.code(), Some(2), "{o:?}");
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert!(err.contains(option), "{err}");
+        assert!(!out.exists());
+    }
 }
