@@ -1,13 +1,12 @@
 //! Published devices the default model is compared with, and the model-form uncertainty
 //! their spread gives.
 //!
-//! Each device is reconstructed as a design file in `tests/data/validation/` from what its
+//! Each device is reconstructed as a design file in `designs/validation/` (built into the
+//! binary, so a report anywhere can rerun it) from what its
 //! paper states; what the paper leaves unsaid is filled with the project's defaults and
 //! listed in [`PublishedDevice::unsaid`]. The integration test `calibrate::published_*` runs
 //! the default (uncalibrated) model on each with [`modelled_figure`], checks it within ±30 %
 //! of the published figure, and recomputes [`MODEL_FORM_RELATIVE_SD`] from the comparisons.
-
-use std::path::Path;
 
 use crate::Error;
 use crate::design::{self, LoadedDesign, Variant};
@@ -64,8 +63,10 @@ pub struct PublishedDevice {
     pub conditions: &'static str,
     /// What the paper leaves unsaid, and what was assumed.
     pub unsaid: &'static str,
-    /// The reconstructed design, relative to `tests/data/validation/`.
+    /// Where the reconstructed design lives in the source tree (names it in messages).
     pub design_file: &'static str,
+    /// The reconstructed design's text, built into the binary.
+    pub design_text: &'static str,
     /// The variant in it.
     pub variant: &'static str,
 }
@@ -102,7 +103,8 @@ pub fn published_devices() -> Vec<PublishedDevice> {
             unsaid: "test days, insolation, basin area, water depth, cover, insulation: 1 m2, \
                      20 mm, 4 mm glass at 13 deg facing south, black liner, 50 mm foam base, \
                      25 mm sides",
-            design_file: "basin-chennai.toml",
+            design_file: "designs/validation/basin-chennai.toml",
+            design_text: include_str!("../../designs/validation/basin-chennai.toml"),
             variant: "conventional",
         },
         PublishedDevice {
@@ -126,7 +128,8 @@ pub fn published_devices() -> Vec<PublishedDevice> {
                      of the sunlight through the cover, their overall thermal efficiency is \
                      23 % (theirs also counts light through the transparent walls), so the \
                      agreement rests partly on the reconstructed climate",
-            design_file: "wick-allahabad.toml",
+            design_file: "designs/validation/wick-allahabad.toml",
+            design_text: include_str!("../../designs/validation/wick-allahabad.toml"),
             variant: "cotton-wick",
         },
         PublishedDevice {
@@ -143,7 +146,8 @@ pub fn published_devices() -> Vec<PublishedDevice> {
             unsaid: "as the cotton-wick device; also what in the jute (wetting, thickness, \
                      colour) made it yield 22 % less than cotton, which the model sees only \
                      through the absorptance",
-            design_file: "wick-allahabad.toml",
+            design_file: "designs/validation/wick-allahabad.toml",
+            design_text: include_str!("../../designs/validation/wick-allahabad.toml"),
             variant: "jute-wick",
         },
         PublishedDevice {
@@ -168,7 +172,8 @@ pub fn published_devices() -> Vec<PublishedDevice> {
                      where ours are open air gaps with a wick, and their absorber sat under \
                      transparent insulation where ours is black paint under 3 mm glass \
                      (from memory); feed 0.5 L/h/m2 per stage assumed",
-            design_file: "multi-effect-turin-lab.toml",
+            design_file: "designs/validation/multi-effect-turin-lab.toml",
+            design_text: include_str!("../../designs/validation/multi-effect-turin-lab.toml"),
             variant: "ten-stage",
         },
     ]
@@ -189,8 +194,8 @@ pub fn model_form_relative_sd(pairs: &[(f64, f64)]) -> f64 {
 ///
 /// Errors: the design's own errors ([`Error::Design`], [`Error::Io`]), a variant missing
 /// from it or a model that could not give a trustworthy number ([`Error::Model`]).
-pub fn modelled_figure(device: &PublishedDevice, validation_dir: &Path) -> Result<f64, Error> {
-    let loaded = design::load_design(&validation_dir.join(device.design_file))?;
+pub fn modelled_figure(device: &PublishedDevice) -> Result<f64, Error> {
+    let loaded = design::load_embedded(device.design_text, device.design_file)?;
     let weather = stills::site_weather(&loaded)?;
     let variant = loaded
         .design

@@ -23,8 +23,8 @@ use stillbench::report::{self, DemandChoice, ReportOptions, SheetChoice, Templat
     `stillbench uncertainty` (--samples, --seed: same figures for the same values); the\n\
     recommended variant is also sized over --years stochastic weather years at --confidence\n\
     (as `stillbench size`, same seed). The workshop sheet is the recommended variant's unless\n\
-    --sheet names others. Published-device comparisons are rerun when their reconstructed\n\
-    designs are found in tests/data/validation/ (a source checkout).\n\n\
+    --sheet names others. The published-device comparisons are rerun from the reconstructed\n\
+    designs built into stillbench (designs/validation/ in the source).\n\n\
     Examples:\n  stillbench report\n  stillbench report designs/demo-coast.toml --out reports/coast --force\n  \
     stillbench report designs/demo-coast.toml --people 200 --litres-per-person 3"
 )]
@@ -131,7 +131,6 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<()> {
         sizing_years: args.years,
         confidence: args.confidence,
         sheets,
-        validation_dirs: vec![PathBuf::from("tests/data/validation")],
         ..ReportOptions::quick(
             args.seed,
             demand,

@@ -166,23 +166,49 @@ pub fn parse_library(bytes: &[u8], origin: &Path) -> Result<Library, DesignError
     parse::load_library(origin, bytes).map_err(DesignErrors)
 }
 
-/// The embedded demo's files: nothing is read from disk.
+/// The embedded designs' files: nothing is read from disk; the one file they may refer to is
+/// the embedded demo materials library.
 struct DemoFiles;
+
+/// `path` with `.` and `name/..` pairs removed, lexically (no disk access).
+fn lexical_normal(path: &Path) -> std::path::PathBuf {
+    use std::path::Component;
+    let mut out: Vec<Component> = Vec::new();
+    for c in path.components() {
+        match c {
+            Component::CurDir => {}
+            Component::ParentDir if matches!(out.last(), Some(Component::Normal(_))) => {
+                out.pop();
+            }
+            c => out.push(c),
+        }
+    }
+    out.iter().collect()
+}
 
 impl parse::Files for DemoFiles {
     fn read(&self, path: &Path) -> std::io::Result<Vec<u8>> {
-        if path == Path::new(DEMO_LIBRARY_PATH) {
+        if self.is_file(path) {
             Ok(DEMO_LIBRARY.as_bytes().to_vec())
         } else {
             Err(std::io::Error::new(
                 std::io::ErrorKind::NotFound,
-                "the built-in demo holds only its own materials library",
+                "a built-in design holds only the demo materials library",
             ))
         }
     }
     fn is_file(&self, path: &Path) -> bool {
-        path == Path::new(DEMO_LIBRARY_PATH)
+        lexical_normal(path) == Path::new(DEMO_LIBRARY_PATH)
     }
+}
+
+/// A design built into the binary (`text`, named `path` in messages, e.g.
+/// `designs/validation/basin-chennai.toml`), whose materials may only be the embedded demo
+/// library (given relative to `path`'s folder as in the source tree). Reads nothing from disk.
+pub fn load_embedded(text: &str, path: &str) -> Result<LoadedDesign, DesignErrors> {
+    let origin = Path::new(path);
+    let base = origin.parent().unwrap_or(Path::new(""));
+    parse::parse_design(text, origin, base, &DemoFiles)
 }
 
 /// The built-in demo design, so commands run with no file given. Reads nothing from disk.

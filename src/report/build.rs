@@ -64,8 +64,6 @@ pub struct ReportOptions {
     pub confidence: f64,
     /// Which variants get a fabricator sheet.
     pub sheets: SheetChoice,
-    /// Folders searched for the published devices' reconstructed designs.
-    pub validation_dirs: Vec<std::path::PathBuf>,
 }
 
 impl ReportOptions {
@@ -81,7 +79,6 @@ impl ReportOptions {
             sizing_years: 0,
             confidence: crate::compare::size::DEFAULT_CONFIDENCE,
             sheets: SheetChoice::Recommended,
-            validation_dirs: Vec::new(),
         }
     }
 }
@@ -538,7 +535,7 @@ pub fn build_context_with(
     };
     let alternatives = stages::alternatives_section(loaded, top);
     let risks = Some(stages::risks_section(loaded));
-    let validation = Some(stages::validation_section(loaded, &opts.validation_dirs));
+    let validation = Some(stages::validation_section(loaded));
     Ok(ReportContext {
         meta: MetaSection {
             title: loaded.design.project.title.clone(),

@@ -522,11 +522,13 @@ pub struct ValidationRow {
     pub source: String,
     /// The conditions reconstructed from the source, and what it leaves unsaid.
     pub conditions: String,
-    /// Measured (published) [L m⁻² day⁻¹].
-    pub measured_l_m2_day: f64,
-    /// Predicted by the default model [L m⁻² day⁻¹]; `None` when the reconstructed design
-    /// could not be run here.
-    pub predicted_l_m2_day: Option<f64>,
+    /// The published figure, in `unit`.
+    pub published: f64,
+    /// Unit of `published` and `predicted` (a daily yield, or an hourly lab rate).
+    pub unit: String,
+    /// Predicted by the default model, in `unit`; `None` when the reconstructed design could
+    /// not be run.
+    pub predicted: Option<f64>,
     /// predicted ÷ measured − 1 [-], when predicted.
     pub error: Option<f64>,
 }

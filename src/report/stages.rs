@@ -4,14 +4,12 @@
 //! fabricator sheets with the alternatives and risk tables ([`crate::workshop`]), and the
 //! published-device validation ([`crate::calibrate::validation`]).
 
-use std::path::{Path, PathBuf};
-
 use super::charts::Chart;
 use super::context::*;
-use crate::calibrate::validation::{MODEL_FORM_RELATIVE_SD, published_devices};
+use crate::calibrate::validation::{MODEL_FORM_RELATIVE_SD, modelled_figure, published_devices};
 use crate::compare::size::{SizeOptions, size_from_years, unit_years, weather_model};
 use crate::compare::{Evaluation, UncertaintyReport};
-use crate::design::{LoadedDesign, load_design};
+use crate::design::LoadedDesign;
 use crate::error::Error;
 use crate::stills::{self, RunOptions};
 use crate::workshop::{self, WorkshopSheet};
@@ -266,29 +264,25 @@ pub fn risks_section(loaded: &LoadedDesign) -> RisksSection {
     }
 }
 
-/// The default model on each published device whose reconstructed design is found in one of
-/// `dirs` (the source tree keeps them in `tests/data/validation/`); a device whose design is
-/// not found is listed with its published figure and no prediction. Also lists the variants
-/// of `loaded` that carry `[variant.calibration]`.
+/// The default model on each published device (their reconstructed designs are built into
+/// the binary); a device whose run fails is listed with its published figure and no
+/// prediction. Also lists the variants of `loaded` that carry `[variant.calibration]`.
 ///
-/// Errors: none for a missing or failing device design (the row shows no prediction); the
-/// comparison is informative, the constant it sizes is checked by the test suite.
-pub fn validation_section(loaded: &LoadedDesign, dirs: &[PathBuf]) -> ValidationSection {
+/// Errors: none for a failing device run (the row shows no prediction); the comparison is
+/// informative, the constant it sizes is checked by the test suite.
+pub fn validation_section(loaded: &LoadedDesign) -> ValidationSection {
     let rows = published_devices()
         .iter()
         .map(|d| {
-            let predicted = dirs
-                .iter()
-                .map(|dir| dir.join(d.design_file))
-                .find(|p| p.is_file())
-                .and_then(|p| device_yield(&p, d.variant, d.month));
+            let predicted = modelled_figure(d).ok();
             ValidationRow {
                 device: d.name.to_owned(),
                 source: d.source.to_owned(),
                 conditions: format!("{}; not stated and assumed: {}", d.conditions, d.unsaid),
-                measured_l_m2_day: d.published_l_m2_day,
-                predicted_l_m2_day: predicted,
-                error: predicted.map(|m| m / d.published_l_m2_day - 1.0),
+                published: d.published,
+                unit: d.basis.unit().to_owned(),
+                predicted,
+                error: predicted.map(|m| m / d.published - 1.0),
             }
         })
         .collect();
@@ -322,21 +316,5 @@ pub fn validation_section(loaded: &LoadedDesign, dirs: &[PathBuf]) -> Validation
             MODEL_FORM_RELATIVE_SD * 100.0
         ),
         calibrated,
-    }
-}
-
-/// Mean daily yield of `variant` in the design at `path` [L m⁻² day⁻¹]: the annual mean day
-/// for `month` 0, else that month's.
-fn device_yield(path: &Path, variant: &str, month: u32) -> Option<f64> {
-    let loaded = load_design(path).ok()?;
-    let weather = stills::site_weather(&loaded).ok()?;
-    let v = loaded.design.variants.iter().find(|v| v.name == variant)?;
-    let r = stills::simulate_variant(&loaded, v, &weather, &RunOptions::default()).ok()?;
-    if month == 0 {
-        Some(r.mean_l_m2_day)
-    } else {
-        r.months
-            .get((month as usize).saturating_sub(1))
-            .map(|m| m.l_m2_day)
     }
 }

@@ -410,8 +410,9 @@ pub fn tables(ctx: &ReportContext) -> Vec<Table> {
                 "device",
                 "source",
                 "conditions",
-                "measured_l_m2_day",
-                "predicted_l_m2_day",
+                "published",
+                "predicted",
+                "unit",
                 "error",
             ],
         );
@@ -420,8 +421,9 @@ pub fn tables(ctx: &ReportContext) -> Vec<Table> {
                 json!(x.device),
                 json!(x.source),
                 json!(x.conditions),
-                json!(x.measured_l_m2_day),
-                json!(x.predicted_l_m2_day),
+                json!(x.published),
+                json!(x.predicted),
+                json!(x.unit),
                 json!(x.error),
             ]);
         }

@@ -673,7 +673,7 @@ fn published_comparisons() -> Vec<(String, f64, f64, &'static str)> {
     published_devices()
         .par_iter()
         .map(|d| {
-            let modelled = validation::modelled_figure(d, &data_dir().join("validation")).unwrap();
+            let modelled = validation::modelled_figure(d).unwrap();
             (d.name.to_owned(), modelled, d.published, d.basis.unit())
         })
         .collect()
@@ -682,7 +682,7 @@ fn published_comparisons() -> Vec<(String, f64, f64, &'static str)> {
 #[test]
 fn published_devices_within_30_percent_and_model_form_constant() {
     // Sources, conditions and what each paper leaves unsaid: src/calibrate/validation.rs and
-    // the design files in tests/data/validation/. The default model, no tuning per device.
+    // the design files in designs/validation/ (built into the binary). The default model, no tuning per device.
     let devices = published_devices();
     // The issue asks for basin, wick and multi-effect devices.
     for kind in ["single-slope", "wick", "multi-effect"] {
@@ -730,7 +730,7 @@ fn model_form_sd_is_the_rms_of_log_ratios() {
 fn a_missing_variant_is_a_model_error_not_a_panic() {
     let mut d = published_devices()[0];
     d.variant = "no-such-variant";
-    let e = validation::modelled_figure(&d, &data_dir().join("validation")).unwrap_err();
+    let e = validation::modelled_figure(&d).unwrap_err();
     assert!(matches!(e, stillbench::Error::Model { .. }), "{e}");
 }
 

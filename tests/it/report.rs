@@ -284,16 +284,18 @@ fn hook_sections_render_when_present() {
                 device: "pilot still A".into(),
                 source: "site log".into(),
                 conditions: "clear June days".into(),
-                measured_l_m2_day: 2.5,
-                predicted_l_m2_day: Some(2.75),
+                published: 2.5,
+                unit: "L/m²/day".into(),
+                predicted: Some(2.75),
                 error: Some(0.1),
             },
             ValidationRow {
                 device: "device B".into(),
                 source: "paper".into(),
                 conditions: "unknown".into(),
-                measured_l_m2_day: 3.0,
-                predicted_l_m2_day: None,
+                published: 3.0,
+                unit: "L/m²/day".into(),
+                predicted: None,
                 error: None,
             },
         ],
@@ -343,10 +345,10 @@ fn hook_sections_render_when_present() {
         "{md}"
     );
     assert!(
-        md.contains("| pilot still A | site log | clear June days | 2.50 | 2.75 | 10.0 % |"),
+        md.contains("| pilot still A | site log | clear June days | 2.50 | 2.75 | L/m²/day | 10.0 % |"),
         "{md}"
     );
-    assert!(md.contains("| device B | paper | unknown | 3.00 | – | – |"));
+    assert!(md.contains("| device B | paper | unknown | 3.00 | – | L/m²/day | – |"));
     assert!(md.contains("| pilot \\<i\\> | 0.850 | 1.000 | – | 1.000 | log.csv | not stated |"));
     assert!(md.contains("costs 0.042 USD per litre over its life"));
     assert!(md.contains("| boiling \\<b\\> | 0.021 | 0.50 | germs | salt |"));
@@ -885,26 +887,25 @@ fn unknown_sheet_is_refused_and_writes_nothing() {
     assert!(!out.exists());
 }
 
-/// The published device is rerun from its reconstructed design when the report runs in a
-/// source checkout (the tests run in the crate root).
+/// Every published device is rerun from its reconstructed design, which is built into the
+/// binary, so the report can do it from any working folder.
 #[test]
 fn validation_rows_rerun_published_devices() {
     let loaded = stillbench::design::load_demo().unwrap();
-    let v = report::stages::validation_section(&loaded, &[PathBuf::from("tests/data/validation")]);
+    let v = report::stages::validation_section(&loaded);
     let chennai = v
         .rows
         .iter()
         .find(|r| r.device == "conventional basin, Chennai")
         .unwrap();
     // Sathyamurthy et al. (2016), abstract: 1.9 kg/m²/day for the conventional still.
-    assert!((chennai.measured_l_m2_day - 1.9).abs() < 1e-12);
-    let p = chennai.predicted_l_m2_day.unwrap();
+    assert!((chennai.published - 1.9).abs() < 1e-12);
+    let p = chennai.predicted.unwrap();
     // ±30 %: issue 10's acceptance band for reconstructed devices.
     assert!((p / 1.9 - 1.0).abs() <= 0.30, "{p}");
     assert!(chennai.conditions.contains("not stated and assumed"));
-    // Without the folder, the row stays, with no prediction.
-    let v = report::stages::validation_section(&loaded, &[]);
-    assert!(v.rows.iter().all(|r| r.predicted_l_m2_day.is_none()));
+    // Every device has a prediction: nothing is read from the working folder.
+    assert!(v.rows.iter().all(|r| r.predicted.is_some()));
     assert!(v.calibrated.is_empty(), "the demo carries no calibration");
 }
 
