@@ -7,7 +7,9 @@ use std::path::PathBuf;
 
 use anyhow::Context;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
-use stillbench::compare::uncertainty::{DEFAULT_SAMPLES, UncertaintyOptions, UncertaintyReport};
+use stillbench::compare::uncertainty::{
+    DEFAULT_SAMPLES, UncertaintyOptions, UncertaintyReport, Z_P90,
+};
 use stillbench::compare::{Percentiles, run_uncertainty};
 use stillbench::design::LoadedDesign;
 
@@ -186,6 +188,15 @@ pub fn write_text(out: &mut impl Write, rep: &UncertaintyReport) -> std::io::Res
             p.key, p.distribution, p.low, p.high, p.source
         )?;
     }
+    writeln!(
+        out,
+        "  {:<24} {:<40} {:>8.3} {:>8.3}  {}",
+        "model form (per variant)",
+        format!("lognormal factor, median 1, σ(ln) {:.3}", rep.model_form_sd),
+        (-Z_P90 * rep.model_form_sd).exp(),
+        (Z_P90 * rep.model_form_sd).exp(),
+        rep.model_form_source
+    )?;
     writeln!(
         out,
         "  Offsets add to the design or library value; multipliers scale it. Vapour leakage does \
