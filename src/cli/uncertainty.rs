@@ -31,9 +31,10 @@ pub enum Format {
     means, a realistic spread and day-to-day persistence), one draw of every uncertain\n  \
     parameter (cover emissivity, cover transmittance/soiling, collection efficiency, vapour\n  \
     leakage, wind, insulation quality, absorptance) and a model-form factor on yield (lognormal,\n  \
-    relative SD 15 % until calibration sizes it). Yields come from a daily response model per\n  \
+    median 1, sigma of ln from the model's scatter against published devices; the output\n  \
+    names it). Yields come from a daily response model per\n  \
     variant and month fitted to full simulations (about 22 average-day runs per variant); it\n  \
-    reproduces hour-by-hour simulations of held-back years within a few per cent\n  \
+    reproduces hour-by-hour simulations of held-back years within 3 % on monthly means\n  \
     (docs/compare.md). The same seed gives the same figures on any number of threads.\n  \
     Sensitivity: annual yield at each parameter's P10 and P90 with the others nominal,\n  \
     largest swing first (a tornado chart).\n\n\

@@ -1,5 +1,5 @@
 //! Monte Carlo uncertainty of each variant's yield over stochastic weather and uncertain
-//! parameters, plus a model-form term.
+//! parameters, plus a model-form term sized from the validation against published devices.
 //!
 //! Flow: [`run_uncertainty`] fits one [`VariantResponse`] per variant
 //! ([`super::response::fit_responses`]: average-day simulations at seven clearness levels and at
