@@ -37,3 +37,21 @@ fn fit_5_variants(bencher: divan::Bencher) {
     let params = default_parameters();
     bencher.bench(|| fit_responses(&loaded, &params, None).expect("the demo fits"));
 }
+
+/// `size` on the demo by the daily response model: 20 stochastic years × 5 variants, 200
+/// people at 3 L (fitting of the clearness levels included).
+#[divan::bench(sample_count = 5)]
+fn size_demo_response(bencher: divan::Bencher) {
+    use stillbench::compare::size::{SizeMethod, SizeOptions, size_design_by};
+    let loaded = demo();
+    let opts = SizeOptions {
+        demand_l_day: 600.0,
+        confidence: 0.9,
+        years: 20,
+        seed: 1,
+    };
+    let run = stillbench::stills::RunOptions::default();
+    bencher.bench(|| {
+        size_design_by(&loaded, &opts, &run, SizeMethod::Response).expect("the demo sizes")
+    });
+}

@@ -1,5 +1,5 @@
 //! `stillbench size [DESIGN] --demand L_PER_DAY | --people N [--litres-per-person L]
-//! [--confidence 0.9] [--years N] [--seed S] [--format text|json|csv]`: how many units of each
+//! [--confidence 0.9] [--years N] [--seed S] [--full] [--format text|json|csv]`: how many units of each
 //! variant meet a daily demand in the worst month, in at least the confidence fraction of
 //! stochastic weather years; their capital, land (rows spaced against noon shading), storage
 //! for runs of low-output days, and the rain the covers would catch.
@@ -10,7 +10,7 @@ use std::path::PathBuf;
 use anyhow::Context;
 use stillbench::compare::size::{
     self, DEFAULT_CONFIDENCE, DEFAULT_YEARS, DRINKING_AND_COOKING_L_PER_PERSON_DAY,
-    DRINKING_L_PER_PERSON_DAY, SizeOptions, SizeReport,
+    DRINKING_L_PER_PERSON_DAY, SizeMethod, SizeOptions, SizeReport,
 };
 use stillbench::design::{DesignErrors, DesignIssue};
 use stillbench::stills;
@@ -29,7 +29,9 @@ pub enum Format {
 /// Arguments of `size`.
 #[derive(Debug, clap::Args)]
 #[command(after_help = "Method:\n  \
-    Each variant is simulated hour by hour over --years stochastic weather years (seeded).\n  \
+    Each variant's output over --years stochastic weather years (seeded) comes from its daily\n  \
+    response model (fitted from average-day simulations, validated within 3 % on monthly\n  \
+    means against full simulation); --full simulates every year hour by hour instead.\n  \
     Units: in each year, ceil(demand / worst-month mean L/day of one unit); the array is the\n  \
     ceil(confidence x years)-th smallest, so at least that fraction of years is met.\n  \
     Land: rows face the equator, spaced so no row shades the next at solar noon on the\n  \
@@ -37,7 +39,7 @@ pub enum Format {
     Storage: a low-output day makes less than the demand; the tank carries the deficit that\n  \
     builds over runs of such days (sequent-peak), taken at the same confidence over years.\n  \
     Rain caught by the covers is shown apart and never added to the distillate.\n  \
-    The Monte Carlo over uncertain parameters and a fast response model come later.\n\n\
+    Parameter and model-form uncertainty: see `stillbench uncertainty`.\n\n\
     Per-person figures (Sphere Handbook 2018, water-supply standard 2.1; from memory):\n  \
     drinking only 3 L/person/day (the default), drinking and cooking 6 L/person/day.\n\n\
     Examples:\n  stillbench size designs/demo-coast.toml --demand 200\n  \
@@ -73,6 +75,10 @@ pub struct SizeArgs {
     /// Seed of the weather generator (the same seed gives the same figures).
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
+    /// Simulate every stochastic year hour by hour instead of using the validated daily
+    /// response model (slower: tens of seconds on the demo).
+    #[arg(long)]
+    pub full: bool,
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,
@@ -147,7 +153,12 @@ pub fn run(args: &SizeArgs) -> anyhow::Result<()> {
         years: args.years,
         seed: args.seed,
     };
-    let rep = size::size_design(&loaded, &opts, &stills::RunOptions::default())?;
+    let method = if args.full {
+        SizeMethod::Full
+    } else {
+        SizeMethod::Response
+    };
+    let rep = size::size_design_by(&loaded, &opts, &stills::RunOptions::default(), method)?;
     for s in &rep.skipped {
         eprintln!("note: `{}` is not sized: {}", s.name, s.reason);
     }
@@ -179,10 +190,14 @@ pub fn write_text(
     writeln!(out, "demand: {demand_note}")?;
     writeln!(
         out,
-        "met in the worst month in at least {:.0} % of {} stochastic years (seed {})",
+        "met in the worst month in at least {:.0} % of {} stochastic years (seed {}), {}",
         o.confidence * 100.0,
         o.years,
-        o.seed
+        o.seed,
+        match rep.method {
+            SizeMethod::Response => "from each variant's validated daily response model",
+            SizeMethod::Full => "each year simulated hour by hour (--full)",
+        }
     )?;
     writeln!(
         out,

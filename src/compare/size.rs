@@ -20,14 +20,19 @@
 //!
 //! Years are simulated in parallel (rayon) but collected and reduced in year order (no
 //! parallel float sums), so a seed gives the same figures on any number of threads.
-//! The Monte Carlo over uncertain parameters and the fast daily response model come later
-//! (issue 8, item 4); each year here is a full hourly simulation, so a multi-effect still
-//! (seconds per year) dominates the run time.
+//!
+//! Two ways to get the years ([`SizeMethod`]): the daily **response model**
+//! ([`super::response`], fitted from eight average-day runs per variant and validated against
+//! full simulation of held-back stochastic years within 3 % for monthly means — see
+//! `docs/compare.md`), which makes the many years cost milliseconds; or **full** hour-by-hour
+//! simulation of every year ([`unit_years`], `size --full`), which takes seconds to tens of
+//! seconds on the demo. Both read the same stochastic years (same seed, same daily clearness).
 
 use rayon::prelude::*;
 use serde::Serialize;
 
 use super::evaluate::Skipped;
+use super::response::{VariantResponse, fit_responses};
 use crate::climate::stochastic::StochasticModel;
 use crate::climate::{ClimateSource, StochasticSettings};
 use crate::design::{
@@ -53,6 +58,18 @@ pub const DEFAULT_CONFIDENCE: f64 = 0.9;
 
 /// Most stochastic years accepted (each is a full hourly simulation of every variant).
 pub const MAX_YEARS: u32 = 1000;
+
+/// How `size` gets each variant's stochastic years.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Default)]
+#[serde(rename_all = "kebab-case")]
+pub enum SizeMethod {
+    /// The validated daily response model ([`response_years`]): fast (the default of the
+    /// command).
+    #[default]
+    Response,
+    /// Full hour-by-hour simulation of every year ([`unit_years`]).
+    Full,
+}
 
 /// What to size for.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -337,6 +354,34 @@ pub fn unit_years(
     results.into_iter().collect()
 }
 
+/// One still over stochastic years `0..years` of `seed`, from its fitted daily response
+/// model instead of hour-by-hour simulation: each day's yield is
+/// [`VariantResponse::daily_l_m2`] of the day's clearness index (the same generator stream
+/// [`unit_years`] simulates) times the footprint.
+///
+/// Notes: the response model ignores heat carried from one day to the next, so single days
+/// scatter by 2–6 % RMS against full simulation while monthly means stay within 3 %; the
+/// storage figure, which sums daily deficits, inherits that daily scatter.
+pub fn response_years(
+    model: &StochasticModel,
+    response: &VariantResponse,
+    seed: u64,
+    years: u32,
+) -> Vec<UnitYear> {
+    let fp = response.footprint_m2;
+    (0..u64::from(years))
+        .map(|y| {
+            let kts = model.daily_clearness(seed, y);
+            let daily = response
+                .daily_l_m2(&kts)
+                .into_iter()
+                .map(|l| l * fp)
+                .collect();
+            UnitYear::from_daily(y, daily)
+        })
+        .collect()
+}
+
 /// Fraction of `years` in which `units` stills meet `demand_l_day` in the worst month [-].
 pub fn met_fraction(years: &[UnitYear], units: u64, demand_l_day: f64) -> f64 {
     if years.is_empty() {
@@ -410,6 +455,8 @@ pub struct VariantSize {
 pub struct SizeReport {
     /// The options used.
     pub options: SizeOptions,
+    /// How the years were obtained.
+    pub method: SizeMethod,
     /// Currency of money figures.
     pub currency: String,
     /// Runoff coefficient used for rain [-].
@@ -524,33 +571,82 @@ pub fn size_from_years(
     }))
 }
 
-/// Size every variant of a design to the demand.
-///
-/// Errors: [`Error::Design`] (exit 2) for bad options (naming the option), a weather-file
-/// site or a costing problem; [`Error::Model`] when no variant could be sized.
+/// Size every variant of a design to the demand by full hour-by-hour simulation of every
+/// year ([`SizeMethod::Full`]); see [`size_design_by`].
 pub fn size_design(
     loaded: &LoadedDesign,
     opts: &SizeOptions,
     run: &RunOptions,
 ) -> Result<SizeReport, Error> {
+    size_design_by(loaded, opts, run, SizeMethod::Full)
+}
+
+/// Size every variant of a design to the demand, getting the stochastic years by `method`.
+///
+/// `run` applies to full simulation; the response model is fitted with the default run
+/// options (as the Monte Carlo fits it), at nominal parameters.
+///
+/// Errors: [`Error::Design`] (exit 2) for bad options (naming the option), a weather-file
+/// site or a costing problem; [`Error::Model`] when no variant could be sized.
+pub fn size_design_by(
+    loaded: &LoadedDesign,
+    opts: &SizeOptions,
+    run: &RunOptions,
+    method: SizeMethod,
+) -> Result<SizeReport, Error> {
     if let Err((option, message)) = opts.validate() {
         return Err(design_error(loaded, &option, message));
     }
     let model = weather_model(loaded)?;
-    let base = stills::site_weather(loaded)?;
     let mut sized = Vec::new();
     let mut skipped = Vec::new();
-    for (i, v) in loaded.design.variants.iter().enumerate() {
-        let years = match unit_years(loaded, i, &model, &base, opts.seed, opts.years, run) {
-            Ok(y) => y,
-            Err(Error::Model { reason, at, .. }) => {
-                skipped.push(Skipped {
-                    name: v.name.clone(),
-                    reason: format!("{reason}{at}"),
-                });
-                continue;
+    let mut all_years: Vec<Option<Vec<UnitYear>>> = Vec::new();
+    match method {
+        SizeMethod::Full => {
+            let base = stills::site_weather(loaded)?;
+            for (i, v) in loaded.design.variants.iter().enumerate() {
+                match unit_years(loaded, i, &model, &base, opts.seed, opts.years, run) {
+                    Ok(y) => all_years.push(Some(y)),
+                    Err(Error::Model { reason, at, .. }) => {
+                        skipped.push(Skipped {
+                            name: v.name.clone(),
+                            reason: format!("{reason}{at}"),
+                        });
+                        all_years.push(None);
+                    }
+                    Err(e) => return Err(e),
+                }
             }
-            Err(e) => return Err(e),
+        }
+        SizeMethod::Response => {
+            // Only the clearness levels are needed: no uncertain parameters.
+            let fit = match fit_responses(loaded, &[], None) {
+                Ok(f) => f,
+                Err(Error::Model {
+                    variant, reason, ..
+                }) => {
+                    return Err(Error::Model {
+                        variant,
+                        at: String::new(),
+                        reason: format!("no variant could be sized: {reason}"),
+                    });
+                }
+                Err(e) => return Err(e),
+            };
+            skipped.extend(fit.skipped.iter().cloned());
+            for i in 0..loaded.design.variants.len() {
+                all_years.push(
+                    fit.responses
+                        .iter()
+                        .find(|r| r.index == i)
+                        .map(|r| response_years(&fit.weather_model, r, opts.seed, opts.years)),
+                );
+            }
+        }
+    }
+    for (i, (v, years)) in loaded.design.variants.iter().zip(all_years).enumerate() {
+        let Some(years) = years else {
+            continue;
         };
         match size_from_years(loaded, i, &years, opts)? {
             Ok(s) => sized.push(s),
@@ -573,6 +669,7 @@ pub fn size_design(
     }
     Ok(SizeReport {
         options: *opts,
+        method,
         currency: loaded.design.project.currency.clone(),
         runoff_coefficient: COVER_RUNOFF_COEFFICIENT,
         sized,

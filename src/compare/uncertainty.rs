@@ -1,8 +1,8 @@
 //! Monte Carlo uncertainty of each variant's yield over stochastic weather and uncertain
-//! parameters, plus a model-form term.
+//! parameters, plus a model-form term sized from the validation against published devices.
 //!
 //! Flow: [`run_uncertainty`] fits one [`VariantResponse`] per variant
-//! ([`super::response::fit_responses`]: average-day simulations at five clearness levels and at
+//! ([`super::response::fit_responses`]: average-day simulations at seven clearness levels and at
 //! the low and high value of every parameter), then draws `samples` years. Sample *i* takes
 //! its daily clearness from the site's stochastic generator (ChaCha20, `seed`, stream *i* —
 //! the same years `size` simulates) and its parameter values and model-form factors from a
@@ -28,13 +28,29 @@ use crate::design::{DAYS_IN_MONTH, DesignErrors, DesignIssue, LoadedDesign, Vari
 use crate::error::Error;
 use crate::stills::SiteWeather;
 
-/// Relative standard deviation of the model-form factor on yield [-] (default 0.15).
+/// Spread of the model-form factor on yield, σ of ln(factor) [-]: the validation constant
+/// [`crate::calibrate::validation::MODEL_FORM_RELATIVE_SD`], referenced rather than copied.
 ///
-/// From memory: published comparisons of heat-and-mass-transfer models of basin and wick
-/// stills with measured daily yields commonly disagree by 10–20 %, so 15 % is a stated
-/// placeholder until the calibration and validation work sizes it from the scatter against
-/// published devices. It is [`UncertaintyOptions::model_form_sd`], so it can be replaced.
-pub const DEFAULT_MODEL_FORM_SD: f64 = 0.15;
+/// That constant is the root-mean-square of ln(model ÷ published) over the published devices
+/// the default model is compared with, i.e. the standard deviation of ln(factor) of a
+/// log-normal factor with median 1 — so it is used as σ(ln) unchanged: factor = exp(σ·z)
+/// ([`model_form_factor`]). The factor's relative standard deviation (coefficient of
+/// variation) is then √(exp(σ²) − 1), which equals σ to first order (0.153 → 0.154).
+/// It is [`UncertaintyOptions::model_form_sd`], so a caller can replace it.
+pub const DEFAULT_MODEL_FORM_SD: f64 = crate::calibrate::validation::MODEL_FORM_RELATIVE_SD;
+
+/// Where [`DEFAULT_MODEL_FORM_SD`] comes from, as the output names it.
+pub const MODEL_FORM_SOURCE: &str = "the default model's scatter against published devices \
+     (stillbench::calibrate::validation::MODEL_FORM_RELATIVE_SD: root-mean-square of \
+     ln(model / published)), used as sigma of ln(factor) of a log-normal factor with median 1";
+
+/// The multiplicative model-form factor at standard normal deviate `z`: exp(σ·z), median 1,
+/// σ = `sd_ln` [-] the standard deviation of ln(factor); `z` is truncated at
+/// ±[`Z_TRUNCATION`] like every other draw. Its coefficient of variation is
+/// √(exp(σ²) − 1) (untruncated; a log-normal's textbook moments — from memory).
+pub fn model_form_factor(sd_ln: f64, z: f64) -> f64 {
+    (sd_ln * z.clamp(-Z_TRUNCATION, Z_TRUNCATION)).exp()
+}
 
 /// Default number of Monte Carlo samples.
 pub const DEFAULT_SAMPLES: u32 = 1000;
@@ -410,8 +426,9 @@ pub struct UncertaintyOptions {
     pub samples: u32,
     /// Seed of both generators.
     pub seed: u64,
-    /// Relative SD of the multiplicative model-form factor on yield [-]; the factor is
-    /// lognormal, exp(sd·z), median 1. Default [`DEFAULT_MODEL_FORM_SD`].
+    /// Spread of the multiplicative model-form factor on yield, σ of ln(factor) [-]; the
+    /// factor is lognormal, exp(sd·z), median 1 ([`model_form_factor`]). Default
+    /// [`DEFAULT_MODEL_FORM_SD`], from the validation against published devices.
     pub model_form_sd: f64,
     /// The uncertain parameters (default [`default_parameters`]).
     pub parameters: Vec<UncertainParameter>,
@@ -548,8 +565,10 @@ pub struct UncertaintyReport {
     pub samples: u32,
     /// Seed.
     pub seed: u64,
-    /// Model-form relative SD used [-].
+    /// Model-form spread used, σ of ln(factor) [-].
     pub model_form_sd: f64,
+    /// Where that spread comes from ([`MODEL_FORM_SOURCE`] for the default).
+    pub model_form_source: String,
     /// Whether the weather was stochastic.
     pub stochastic_weather: bool,
     /// The parameters, with their low (P10) and high (P90) values.
@@ -650,12 +669,25 @@ pub fn run_uncertainty(
         samples: opts.samples,
         seed: opts.seed,
         model_form_sd: opts.model_form_sd,
+        model_form_source: model_form_source(opts.model_form_sd),
         stochastic_weather: opts.stochastic_weather,
         parameters: opts.parameters.iter().map(ParameterRow::of).collect(),
         variants,
         skipped: fit.skipped.clone(),
         sensitivity: sensitivity_from(responses, &opts.parameters),
     })
+}
+
+/// Where a model-form spread comes from: [`MODEL_FORM_SOURCE`] for the default, else the
+/// caller.
+pub fn model_form_source(sd_ln: f64) -> String {
+    // Tolerance: the default is the same constant, so any difference beyond rounding is a
+    // caller's own value.
+    if (sd_ln - DEFAULT_MODEL_FORM_SD).abs() < 1e-12 {
+        MODEL_FORM_SOURCE.to_owned()
+    } else {
+        "set by the caller (not the validation default)".to_owned()
+    }
 }
 
 /// The parameter deviates and model-form deviates of sample `i`: one z per parameter (in
@@ -695,7 +727,7 @@ fn sample(
         .iter()
         .zip(&zv)
         .map(|(r, &z)| {
-            let model_form = (opts.model_form_sd * z.clamp(-Z_TRUNCATION, Z_TRUNCATION)).exp();
+            let model_form = model_form_factor(opts.model_form_sd, z);
             let factors: [f64; 12] =
                 std::array::from_fn(|m| r.parameter_factor(m as u32 + 1, &values) * model_form);
             let months = match &kts {

@@ -5,7 +5,7 @@
 
 use assert_cmd::Command;
 use stillbench::compare::size::{
-    self, COVER_RUNOFF_COEFFICIENT, SizeOptions, UnitYear, longest_low_run_days,
+    self, COVER_RUNOFF_COEFFICIENT, SizeMethod, SizeOptions, UnitYear, longest_low_run_days,
     month_noon_elevation_rad, noon_elevation_rad, order_statistic_index, rain_catch_l, row_gap_m,
     sequent_peak_storage_l, units_for,
 };
@@ -246,6 +246,52 @@ fn the_sized_array_meets_fresh_years() {
 }
 
 #[test]
+fn response_model_sizing_meets_fresh_fully_simulated_years() {
+    // `size` now takes its many years from the validated daily response model by default.
+    // The same re-check as above, against full hour-by-hour simulation: size by the response
+    // model on seed 11 (n = 10 years), then simulate fresh years of seed 12 in full. Same
+    // allowance as `the_sized_array_meets_fresh_years` (two binomial standard deviations):
+    // at least 0.44 of the fresh years. Single slope and wick: a thermal-mass kind and a
+    // flow-through kind, both cheap to simulate in full.
+    let mut loaded = design::load_demo().unwrap();
+    loaded
+        .design
+        .variants
+        .retain(|v| matches!(v.kind.name(), "single-slope" | "wick"));
+    assert_eq!(loaded.design.variants.len(), 2);
+    let (c, n, demand) = (0.8, 10, 100.0);
+    let o = opts(demand, c, n, 11);
+    let by_response =
+        size::size_design_by(&loaded, &o, &RunOptions::default(), SizeMethod::Response).unwrap();
+    assert_eq!(by_response.method, SizeMethod::Response);
+    assert_eq!(by_response.sized.len(), 2, "{:?}", by_response.skipped);
+    let model = size::weather_model(&loaded).unwrap();
+    let base = stills::site_weather(&loaded).unwrap();
+    for (i, s) in by_response.sized.iter().enumerate() {
+        let full = |seed| {
+            size::unit_years(&loaded, i, &model, &base, seed, n, &RunOptions::default()).unwrap()
+        };
+        let fresh = full(12);
+        let met = size::met_fraction(&fresh, s.units, demand);
+        let allowance = 2.0 * (2.0 * c * (1.0 - c) / f64::from(n)).sqrt();
+        assert!(
+            met >= c - allowance,
+            "{}: {} units meet {met} of fresh years",
+            s.name,
+            s.units
+        );
+        // The same years sized by full simulation: the units agree within the response
+        // model's validated 3 % on monthly means, plus one unit for rounding up.
+        let by_full = size::size_from_years(&loaded, i, &full(11), &o)
+            .unwrap()
+            .unwrap();
+        let (a, b) = (s.units as f64, by_full.units as f64);
+        eprintln!("{}: response {a} units, full {b} units", s.name);
+        assert!((a - b).abs() <= 0.03 * b + 1.0, "{}: {a} vs {b}", s.name);
+    }
+}
+
+#[test]
 fn one_seed_gives_one_answer() {
     // Reproducibility (issue 8): the same seed gives bit-identical figures; another seed
     // gives other weather.
@@ -359,6 +405,8 @@ fn size_command_json_and_csv() {
         String::from_utf8_lossy(&out.stderr)
     );
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    // The default method is the validated response model; --full simulates every year.
+    assert_eq!(v["method"], "response");
     // 20 people × 6 L (arithmetic).
     assert!((v["options"]["demand_l_day"].as_f64().unwrap() - 120.0).abs() < 1e-12);
     let s = &v["sized"][0];
@@ -367,6 +415,24 @@ fn size_command_json_and_csv() {
     assert!(s["array_worst_month_l_day"].as_f64().unwrap() >= 120.0);
     // Rain sits in its own array, 12 months, apart from the distillate figures.
     assert_eq!(s["rain"].as_array().unwrap().len(), 12);
+    let full = cli()
+        .args([
+            "size",
+            "--demand",
+            "120",
+            "--years",
+            "2",
+            "--confidence",
+            "0.5",
+        ])
+        .args(["--full", "--format", "json"])
+        .arg(&path)
+        .output()
+        .unwrap();
+    assert_eq!(full.status.code(), Some(0));
+    let f: serde_json::Value = serde_json::from_slice(&full.stdout).unwrap();
+    assert_eq!(f["method"], "full");
+    assert!(f["sized"][0]["units"].as_u64().unwrap() >= 1);
     let csv = cli()
         .args([
             "size",

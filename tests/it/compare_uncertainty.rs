@@ -177,18 +177,39 @@ fn percentiles_are_ordered_and_spread_collapses_when_nothing_is_uncertain() {
 
 #[test]
 fn response_model_matches_full_simulation_of_held_back_years() {
-    // The issue's requirement (issue 8, item 4): under 3 % on held-back data. Held-back years
-    // come from seed 90210, never used for fitting (fitting uses no random years at all).
-    let loaded = demo_with(&["single-slope", "double-slope"]);
+    // The issue's requirement (issue 8, item 4): under 3 % on held-back data, for monthly
+    // means and the annual total, for all five kinds. Held-back years come from seed 90210,
+    // never used for fitting (fitting uses no random years at all). Two years per kind keep
+    // the runtime small (the 4-stage stack's stochastic year is ≈ 0.4 s). Daily values scatter
+    // more (the model ignores heat carried between days); their RMS is bounded loosely at
+    // 6 % (regression: measured 1.7–5.9 %, see docs/compare.md) so that a broken model fails.
+    let loaded = design::load_demo().unwrap();
     let params = uncertainty::default_parameters();
     let fit = fit_responses(&loaded, &params, None).unwrap();
+    assert_eq!(fit.responses.len(), 5, "{:?}", fit.skipped);
+    let mut kinds: Vec<&str> = Vec::new();
     for r in &fit.responses {
         let c = validate_response(&loaded, &fit, r, 90_210, 2).unwrap();
-        eprintln!("{c:?}");
+        eprintln!(
+            "{} ({}): worst month {:.2} %, mean month {:.2} %, worst annual {:.2} %, daily RMS \
+             {:.3} L/m²/day ({:.1} %)",
+            r.name,
+            r.kind,
+            c.max_month_rel_error * 100.0,
+            c.mean_month_rel_error * 100.0,
+            c.max_annual_rel_error * 100.0,
+            c.daily_rms_l_m2_day,
+            c.daily_rms_rel * 100.0
+        );
         assert!(c.max_annual_rel_error < 0.03, "{c:?}");
         assert!(c.mean_month_rel_error < 0.03, "{c:?}");
         assert!(c.max_month_rel_error < 0.03, "{c:?}");
+        assert!(c.daily_rms_rel < 0.06, "{c:?}");
+        kinds.push(r.kind.as_str());
     }
+    kinds.sort_unstable();
+    kinds.dedup();
+    assert_eq!(kinds.len(), 5, "every kind validated: {kinds:?}");
 }
 
 #[test]
@@ -297,4 +318,129 @@ fn cli_json_quotes_the_same_figures_as_compare_for_the_same_seed() {
             .as_array()
             .is_some_and(|b| !b.is_empty())
     );
+}
+
+#[test]
+fn model_form_default_is_the_validation_constant_as_sigma_of_ln() {
+    use stillbench::calibrate::validation::MODEL_FORM_RELATIVE_SD;
+    // Item 1 of the issue-8 follow-ups: the default spread is the validation constant (a
+    // root-mean-square of ln(model / published), i.e. σ of ln(factor)), referenced, not copied.
+    let opts = UncertaintyOptions::default();
+    assert!((opts.model_form_sd - MODEL_FORM_RELATIVE_SD).abs() < 1e-15);
+    assert!(uncertainty::model_form_source(opts.model_form_sd).contains("MODEL_FORM_RELATIVE_SD"));
+    assert!(!uncertainty::model_form_source(0.3).contains("MODEL_FORM_RELATIVE_SD"));
+    // Median 1 at z = 0; truncated at ±3 like every draw.
+    assert!((uncertainty::model_form_factor(0.2, 0.0) - 1.0).abs() < 1e-15);
+    assert!((uncertainty::model_form_factor(0.2, 10.0) - (0.2_f64 * 3.0).exp()).abs() < 1e-12);
+
+    // Shape over the generator's own model-form deviates (one per variant per sample): the
+    // logs of the factors are normal with SD σ. Sampling error of an SD over n = 20,000 draws
+    // is σ/√(2n) ≈ 0.0008 (normal theory, from memory); clamping at ±3 lowers it by 0.25 %
+    // (0.0004); tolerance 0.004 is about four standard errors plus the clamp.
+    let sigma = MODEL_FORM_RELATIVE_SD;
+    let n = 20_000u64;
+    let logs: Vec<f64> = (0..n)
+        .map(|i| {
+            let (_, zv) = uncertainty::sample_deviates(1, i, 7, 1);
+            uncertainty::model_form_factor(sigma, zv[0]).ln()
+        })
+        .collect();
+    let mean = logs.iter().sum::<f64>() / n as f64;
+    let sd = (logs.iter().map(|x| (x - mean).powi(2)).sum::<f64>() / (n - 1) as f64).sqrt();
+    assert!(mean.abs() < 0.004, "median of the factor {}", mean.exp());
+    assert!((sd - sigma).abs() < 0.004, "σ(ln) {sd} vs {sigma}");
+    // Relative SD (coefficient of variation) of a log-normal: √(exp(σ²) − 1) (textbook
+    // moments, from memory); same allowance.
+    let f: Vec<f64> = logs.iter().map(|x| x.exp()).collect();
+    let fm = f.iter().sum::<f64>() / n as f64;
+    let fsd = (f.iter().map(|x| (x - fm).powi(2)).sum::<f64>() / (n - 1) as f64).sqrt();
+    let cv = ((sigma * sigma).exp() - 1.0).sqrt();
+    assert!((fsd / fm - cv).abs() < 0.005, "cv {} vs {cv}", fsd / fm);
+}
+
+#[test]
+fn model_form_alone_spreads_the_annual_yield_by_its_sigma() {
+    use stillbench::calibrate::validation::MODEL_FORM_RELATIVE_SD;
+    // Every parameter spread zero and average-day weather: the only spread left is the
+    // model-form factor, so ln(P90 / P10) = 2 · 1.2816 · σ. Sampling error of a P10 or P90 of
+    // 4,000 samples is √(0.09/4000)/φ(1.2816) ≈ 0.027 in z, i.e. 0.004 in ln; of their
+    // difference ÷ 2.563 about 0.0023 on σ (normal theory, from memory): tolerance 0.01.
+    let loaded = demo_with(&["single-slope"]);
+    let mut opts = quiet_options(4000, 3);
+    opts.stochastic_weather = false;
+    for p in &mut opts.parameters {
+        p.spread = 0.0;
+    }
+    let rep = run_uncertainty(&loaded, &opts, None).unwrap();
+    assert!(rep.model_form_source.contains("MODEL_FORM_RELATIVE_SD"));
+    let v = &rep.variants[0];
+    let sigma = (v.annual_l_m2.p90 / v.annual_l_m2.p10).ln() / (2.0 * uncertainty::Z_P90);
+    assert!(
+        (sigma - MODEL_FORM_RELATIVE_SD).abs() < 0.01,
+        "σ {sigma} vs {MODEL_FORM_RELATIVE_SD}"
+    );
+    // Median 1: P50 at the deterministic yield, within the same sampling allowance.
+    assert!((v.annual_l_m2.p50 / v.deterministic_annual_l_m2).ln().abs() < 0.01);
+}
+
+#[test]
+fn multiplied_factors_match_a_run_with_several_parameters_changed_at_once() {
+    // Item 3 of the issue-8 follow-ups: the response model multiplies one factor per
+    // parameter (no interactions). Check it against a full simulation of the monthly
+    // average days with every parameter changed at once.
+    let loaded = demo_with(&["single-slope", "multi-effect"]);
+    let params = uncertainty::default_parameters();
+    let fit = fit_responses(&loaded, &params, None).unwrap();
+    let base = stills::site_weather(&loaded).unwrap();
+    // Two draws: every parameter at the P10/P90 end that lowers the yield (the effects
+    // compound, so interactions are largest), and a mixed draw at ±2 SD, beyond the fitted
+    // points (the factors extrapolate linearly there).
+    let unfavourable: Vec<(ParameterKind, f64)> = params
+        .iter()
+        .map(|p| {
+            let lowers_with_high = matches!(
+                p.kind,
+                ParameterKind::CoverEmissivity
+                    | ParameterKind::VapourLeakage
+                    | ParameterKind::Wind
+                    | ParameterKind::InsulationConductivity
+            );
+            (p.kind, if lowers_with_high { p.high() } else { p.low() })
+        })
+        .collect();
+    let mixed: Vec<(ParameterKind, f64)> = params
+        .iter()
+        .zip([2.0, -2.0, 2.0, 2.0, -2.0, 2.0, -2.0])
+        .map(|(p, z)| (p.kind, p.value(z)))
+        .collect();
+    for values in [&unfavourable, &mixed] {
+        for r in &fit.responses {
+            let (d, w) = perturbed(&loaded, r.index, &base, values).unwrap();
+            let v = &d.design.variants[r.index];
+            let sim = stills::simulate_variant(&d, v, &w, &RunOptions::default()).unwrap();
+            let mut worst: f64 = 0.0;
+            let mut pred_annual = 0.0;
+            for m in &sim.months {
+                let mi = (m.month - 1) as usize;
+                let pred = r.nominal_month_l_m2_day[mi] * r.parameter_factor(m.month, values);
+                pred_annual += pred * f64::from(stillbench::design::DAYS_IN_MONTH[mi]);
+                worst = worst.max((pred / m.l_m2_day - 1.0).abs());
+            }
+            let annual_err = (pred_annual / sim.annual_l_m2 - 1.0).abs();
+            eprintln!(
+                "{}: joint change {:.1} %, worst month error {:.2} %, annual error {:.2} %",
+                r.name,
+                (sim.annual_l_m2 / r.deterministic_annual_l_m2 - 1.0) * 100.0,
+                worst * 100.0,
+                annual_err * 100.0
+            );
+            // Tolerance: the issue's 3 % for the response model, per month, and 2 % on the
+            // year. Interactions between parameters are second order (products of changes of
+            // a few per cent each); measured: single slope ≤ 0.3 %, the 4-stage stack ≤ 2.1 %
+            // per month and ≤ 1.3 % on the year (its stages couple transmittance, wind and
+            // insulation through the same sink temperature).
+            assert!(worst < 0.03, "{}: month error {worst}", r.name);
+            assert!(annual_err < 0.02, "{}: annual error {annual_err}", r.name);
+        }
+    }
 }
