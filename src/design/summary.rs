@@ -3,7 +3,7 @@
 use std::io::{self, Write};
 
 use super::LoadedDesign;
-use super::schema::{Climate, Humidity, MonthlyClimate, Variant, VariantKind};
+use super::schema::{Climate, Humidity, MonthlyClimate, Sink, Variant, VariantKind};
 
 const MONTHS: [&str; 12] = [
     "Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec",
@@ -131,19 +131,33 @@ fn variant(w: &mut dyn Write, i: usize, v: &Variant) -> io::Result<()> {
                 k.liner
             )
         }
-        VariantKind::MultiEffect(k) => writeln!(
-            w,
-            "     {} stages, gap {} mm; plate \"{}\", wick \"{}\", absorber \"{}\"; sink {} at \
-             {} W/m²K; feed {} L/h/m² per stage",
-            k.stages,
-            k.gap_mm,
-            k.plate,
-            k.wick_cloth,
-            k.absorber,
-            k.sink.name(),
-            k.sink_coefficient(),
-            k.feed_l_h_m2
-        ),
+        VariantKind::MultiEffect(k) => {
+            // An air sink without a set coefficient is modelled from its fins (free
+            // convection and radiation, following the plate hour by hour), so its geometry is
+            // what the design fixes; any other sink runs at its coefficient.
+            let sink = match (k.sink, k.sink_coefficient_w_m2_k) {
+                (Sink::AirFins, None) if k.fin_height_mm > 0.0 => format!(
+                    "{} with fins {} mm high at {} mm spacing, {} mm thick (coefficient from \
+                     free convection and radiation, hour by hour)",
+                    k.sink.name(),
+                    k.fin_height_mm,
+                    k.fin_spacing_mm,
+                    k.fin_thickness_mm
+                ),
+                (Sink::AirFins, None) => format!(
+                    "{}, a plain plate without fins (coefficient from free convection and \
+                     radiation, hour by hour)",
+                    k.sink.name()
+                ),
+                _ => format!("{} at {} W/m²K", k.sink.name(), k.sink_coefficient()),
+            };
+            writeln!(
+                w,
+                "     {} stages, gap {} mm; plate \"{}\", wick \"{}\", absorber \"{}\"; sink {}; \
+                 feed {} L/h/m² per stage",
+                k.stages, k.gap_mm, k.plate, k.wick_cloth, k.absorber, sink, k.feed_l_h_m2
+            )
+        }
     }
 }
 

@@ -15,9 +15,21 @@ use crate::design::{BasinKind, Costs, Layer, Library, Sink, Variant, VariantKind
 pub const TRAY_FREEBOARD_M: f64 = 0.05;
 /// Wick cloth carried into the feed channel at the top [m] (common practice, no source).
 pub const WICK_FEED_OVERLAP_M: f64 = 0.1;
-/// Fin area per m² of last plate for an air-cooled sink [-] (common practice, no source: the
-/// lower end of the 3–5 assumed by [`Sink::default_coefficient_w_m2_k`]).
-pub const FIN_AREA_RATIO: f64 = 3.0;
+/// Fin sheet to buy per m² of last plate for an air-cooled sink of straight fins [-]:
+/// fins of height H [mm] at a pitch of clear spacing s [mm] plus thickness t [mm] are strips
+/// H wide, one per pitch, so the sheet is H/(s + t) per m² of plate (0 for a plain plate).
+///
+/// This is one face of each strip, the area of sheet bought: the heat-transfer area that the
+/// air sink's coefficient uses counts both faces and the tip, 2(H + t/2)/(s + t), about twice
+/// as much (≈ 9.2 for the default 50 mm fins at 10 mm spacing, 1 mm thick).
+pub fn fin_sheet_area_ratio(fin_height_mm: f64, fin_spacing_mm: f64, fin_thickness_mm: f64) -> f64 {
+    let pitch_mm = fin_spacing_mm + fin_thickness_mm;
+    if fin_height_mm > 0.0 && pitch_mm > 0.0 {
+        fin_height_mm / pitch_mm
+    } else {
+        0.0
+    }
+}
 /// Supply, distillate-outlet and drain pipe on top of the feed line [m] (common practice,
 /// no source: 1 m supply, 1 m distillate outlet, 0.5 m drain).
 pub const PIPE_ALLOWANCE_M: f64 = 2.5;
@@ -812,14 +824,20 @@ pub fn takeoff(v: &Variant, index: usize, lib: &Library, c: &Costs) -> Takeoff {
                 "2·D·(W/cos θ + L)",
                 4,
             );
-            if k.sink == Sink::AirFins {
+            let fin_ratio =
+                fin_sheet_area_ratio(k.fin_height_mm, k.fin_spacing_mm, k.fin_thickness_mm);
+            if k.sink == Sink::AirFins && fin_ratio > 0.0 {
                 out.push(
                     Need::new(
                         "sink fins",
                         &c.items.fin,
                         "costs.items.fin",
-                        &format!("{FIN_AREA_RATIO}·(W/cos θ)·L fin area per plate area"),
-                        Amount::AreaM2(FIN_AREA_RATIO * s * l),
+                        &format!(
+                            "H/(s + t)·(W/cos θ)·L = {fin_ratio:.2} m² of sheet per m² of \
+                             plate ({:.0} mm fins at {:.0} mm spacing, {:.1} mm thick)",
+                            k.fin_height_mm, k.fin_spacing_mm, k.fin_thickness_mm
+                        ),
+                        Amount::AreaM2(fin_ratio * s * l),
                         Contact::Dry,
                     )
                     .counts(1, 1),
@@ -966,4 +984,22 @@ fn frame(
         n = n.bar(label, *len, *k);
     }
     out.push(n);
+}
+
+#[cfg(test)]
+mod tests {
+    use super::fin_sheet_area_ratio;
+
+    #[test]
+    fn fin_sheet_is_one_face_per_pitch() {
+        // Hand geometry (common practice, no source): 50 mm strips at 10 + 1 mm pitch are
+        // 50/11 = 4.545 m² of sheet per m² of plate; tolerance is round-off only.
+        assert!((fin_sheet_area_ratio(50.0, 10.0, 1.0) - 50.0 / 11.0).abs() < 1e-12);
+        // Both faces and the tip, 2·(50 + 0.5)/11 = 9.18, the heat-transfer area of the same
+        // fins (the ≈ 9.2 quoted for the defaults), is a little over twice the sheet.
+        let wetted = 2.0 * (50.0 + 0.5) / 11.0;
+        assert!((wetted / fin_sheet_area_ratio(50.0, 10.0, 1.0) - 2.02).abs() < 1e-9);
+        // A plain plate buys no fin sheet.
+        assert!(fin_sheet_area_ratio(0.0, 10.0, 1.0).abs() < 1e-15);
+    }
 }

@@ -3,6 +3,7 @@
 use std::sync::Arc;
 
 use super::models::{ConductanceModel, EnclosureModel, SeawaterProperties, WaterProperties};
+use super::table::LinkTable;
 
 /// Index of an unknown-temperature node in its network.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
@@ -240,6 +241,8 @@ pub struct Network {
     pub(crate) water: Arc<dyn WaterProperties>,
     /// Largest |i − j| over links joining nodes i and j (band half-width of the Jacobian).
     pub(crate) bandwidth: usize,
+    /// The links regrouped by kind for the solver's inner loop.
+    pub(crate) table: LinkTable,
 }
 
 impl Network {
@@ -590,6 +593,7 @@ impl NetworkBuilder {
             nodes: self.nodes.clone(),
             boundaries: self.boundaries.clone(),
             links: self.links.clone(),
+            table: LinkTable::new(&self.links),
             water: self
                 .water
                 .clone()

@@ -49,6 +49,7 @@ mod drive;
 mod models;
 mod solver;
 mod state;
+mod table;
 
 pub use balance::{BalanceError, EnergyBalance, MAX_BALANCE_RESIDUAL_FRACTION};
 pub use build::{

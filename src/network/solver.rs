@@ -13,9 +13,9 @@
 
 use nalgebra::DMatrix;
 
-use super::build::{End, LinkKind, Network, NetworkError};
+use super::build::{End, Network, NetworkError};
 use super::state::{Inputs, State, TEMPERATURE_RANGE_K, dissolved_salinity, salinity};
-use crate::physics::constants::STEFAN_BOLTZMANN_W_M2_K4;
+use super::table::EnclosureLink;
 
 /// Newton settings. Validated by [`Solver::new`].
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -869,27 +869,6 @@ fn end_t(e: End, t: &[f64], inputs: &Inputs) -> f64 {
     }
 }
 
-/// Flow of a heat-only link (conductance, variable conductance, radiation).
-fn heat_link(kind: &LinkKind, ua_input_w_k: f64, ta: f64, tb: f64) -> (f64, f64, f64) {
-    match kind {
-        LinkKind::Conductance { .. } => (ua_input_w_k * (ta - tb), ua_input_w_k, -ua_input_w_k),
-        LinkKind::Variable { model } => {
-            let f = model.heat_flow(ta, tb);
-            (f.q_w, f.dq_dta_w_k, f.dq_dtb_w_k)
-        }
-        LinkKind::Radiation { exchange_area_m2 } => {
-            let k = STEFAN_BOLTZMANN_W_M2_K4 * exchange_area_m2;
-            let (ta2, tb2) = (ta * ta, tb * tb);
-            (
-                k * (ta2 * ta2 - tb2 * tb2),
-                4.0 * k * ta2 * ta,
-                -4.0 * k * tb2 * tb,
-            )
-        }
-        LinkKind::Enclosure { .. } => (0.0, 0.0, 0.0),
-    }
-}
-
 /// The flows of an enclosure link and their derivatives.
 #[derive(Debug, Clone, Copy, Default)]
 struct EnclosureFlows {
@@ -914,19 +893,16 @@ struct EnclosureFlows {
     g_c: f64,
 }
 
-#[allow(clippy::too_many_arguments)]
 fn enclosure_flows(
     net: &Network,
     c: &StepConsts,
-    w: usize,
+    e: &EnclosureLink,
     tw: f64,
     tc: f64,
-    area_m2: f64,
-    model: &dyn super::models::EnclosureModel,
-    collected: f64,
-    leaked: f64,
 ) -> EnclosureFlows {
     let water = net.water.as_ref();
+    let (w, area_m2, collected, leaked) = (e.w, e.area_m2, e.collected_fraction, e.leaked_fraction);
+    let model = e.model.as_ref();
     let ratio = c.p_ratio[w];
     let (p_w, dp_w) = water.saturation_pressure_with_derivative(tw);
     let (p_hot, dp_hot) = (ratio * p_w, ratio * dp_w);
@@ -1051,56 +1027,84 @@ fn assemble(
         scale[i] = sc;
         jm[i + i * nr] = diag;
     }
-    for (l, link) in net.links.iter().enumerate() {
-        if let LinkKind::Enclosure {
-            area_m2,
-            model,
-            collected_fraction,
-            leaked_fraction,
-        } = &link.kind
-        {
-            let (End::Node(w), End::Node(cn)) = (link.a, link.b) else {
-                continue;
-            };
-            let (w, cn) = (w.0, cn.0);
-            let f = enclosure_flows(
-                net,
-                c,
-                w,
-                t[w],
-                t[cn],
-                *area_m2,
-                model.as_ref(),
-                *collected_fraction,
-                *leaked_fraction,
-            );
-            r[w] -= f.g_w;
-            r[cn] -= f.g_c;
-            scale[w] += f.g_w.abs();
-            scale[cn] += f.g_c.abs();
-            jm[w + w * nr] -= f.dgw_dtw;
-            jm[w + cn * nr] -= f.dgw_dtc;
-            jm[cn + w * nr] -= f.dgc_dtw;
-            jm[cn + cn * nr] -= f.dgc_dtc;
-            flows[l] = f;
-            continue;
-        }
-        let ta = end_t(link.a, t, inputs);
-        let tb = end_t(link.b, t, inputs);
-        let (q, dqa, dqb) = heat_link(&link.kind, inputs.conductance_w_k[l], ta, tb);
-        if let End::Node(a) = link.a {
+    let tb = &inputs.boundary_t_k;
+    let ua = &inputs.conductance_w_k;
+    let tab = &net.table;
+    for e in &tab.enclosures {
+        let (w, cn) = (e.w, e.c);
+        let f = enclosure_flows(net, c, e, t[w], t[cn]);
+        r[w] -= f.g_w;
+        r[cn] -= f.g_c;
+        scale[w] += f.g_w.abs();
+        scale[cn] += f.g_c.abs();
+        jm[w + w * nr] -= f.dgw_dtw;
+        jm[w + cn * nr] -= f.dgw_dtc;
+        jm[cn + w * nr] -= f.dgc_dtw;
+        jm[cn + cn * nr] -= f.dgc_dtc;
+        flows[e.link] = f;
+    }
+    for p in &tab.conductance_pairs {
+        let (a, b) = (p.a, p.b);
+        let u = ua[p.link];
+        let q = u * (t[a] - t[b]);
+        r[a] += q;
+        r[b] -= q;
+        scale[a] += q.abs();
+        scale[b] += q.abs();
+        jm[a + a * nr] += u;
+        jm[a + b * nr] -= u;
+        jm[b + b * nr] += u;
+        jm[b + a * nr] -= u;
+    }
+    for e in &tab.conductance_edges {
+        let i = e.node;
+        let u = ua[e.link];
+        let q = u * (t[i] - tb[e.boundary]);
+        r[i] += q;
+        scale[i] += q.abs();
+        jm[i + i * nr] += u;
+    }
+    for p in &tab.radiation_pairs {
+        let (a, b) = (p.a, p.b);
+        let (ta2, tb2) = (t[a] * t[a], t[b] * t[b]);
+        let q = p.k * (ta2 * ta2 - tb2 * tb2);
+        let (dqa, dqb) = (4.0 * p.k * ta2 * t[a], 4.0 * p.k * tb2 * t[b]);
+        r[a] += q;
+        r[b] -= q;
+        scale[a] += q.abs();
+        scale[b] += q.abs();
+        jm[a + a * nr] += dqa;
+        jm[a + b * nr] -= dqb;
+        jm[b + b * nr] += dqb;
+        jm[b + a * nr] -= dqa;
+    }
+    for e in &tab.radiation_edges {
+        let i = e.node;
+        let tbd = tb[e.boundary];
+        let (ti2, tb2) = (t[i] * t[i], tbd * tbd);
+        let q = e.k * (ti2 * ti2 - tb2 * tb2);
+        r[i] += q;
+        scale[i] += q.abs();
+        jm[i + i * nr] += 4.0 * e.k * ti2 * t[i];
+    }
+    for v in &tab.variable {
+        let ta = end_t(v.a, t, inputs);
+        let tbv = end_t(v.b, t, inputs);
+        let f = v.model.heat_flow(ta, tbv);
+        let (q, dqa, dqb) = (f.q_w, f.dq_dta_w_k, f.dq_dtb_w_k);
+        if let End::Node(a) = v.a {
             r[a.0] += q;
             scale[a.0] += q.abs();
             jm[a.0 + a.0 * nr] += dqa;
-            if let End::Node(b) = link.b {
+            if let End::Node(b) = v.b {
                 jm[a.0 + b.0 * nr] += dqb;
             }
         }
-        if let End::Node(b) = link.b {
+        if let End::Node(b) = v.b {
             r[b.0] -= q;
             scale[b.0] += q.abs();
             jm[b.0 + b.0 * nr] -= dqb;
-            if let End::Node(a) = link.a {
+            if let End::Node(a) = v.a {
                 jm[b.0 + a.0 * nr] -= dqa;
             }
         }
@@ -1118,32 +1122,52 @@ fn fill_record(
     rec: &mut StepRecord,
 ) {
     let water = net.water.as_ref();
-    for (l, link) in net.links.iter().enumerate() {
-        let lr = &mut rec.links[l];
-        *lr = LinkRecord::default();
-        if let LinkKind::Enclosure { .. } = &link.kind {
-            let (End::Node(_), End::Node(_)) = (link.a, link.b) else {
-                continue;
-            };
-            let f = &flows[l];
-            let m = f.mdot_kg_s;
-            let cond = f.psi * m;
-            let leak = m - cond;
-            let drip = f.phi * m;
-            lr.heat_w = f.q_conv_w + f.q_evap_w;
-            lr.convective_w = f.q_conv_w;
-            lr.evaporation_kg_s = m;
-            lr.condensation_kg_s = cond;
-            lr.dripback_kg_s = drip;
-            lr.collection_kg_s = cond - drip;
-            lr.leak_kg_s = leak;
-            lr.distillate_enthalpy_w = (cond - drip) * f.hf_c;
-            lr.leak_enthalpy_w = leak * (f.hf_w + f.hfg_w);
-            continue;
-        }
-        let ta = end_t(link.a, t, inputs);
-        let tb = end_t(link.b, t, inputs);
-        lr.heat_w = heat_link(&link.kind, inputs.conductance_w_k[l], ta, tb).0;
+    let tab = &net.table;
+    let tb = &inputs.boundary_t_k;
+    let ua = &inputs.conductance_w_k;
+    for e in &tab.enclosures {
+        let f = &flows[e.link];
+        let m = f.mdot_kg_s;
+        let cond = f.psi * m;
+        let leak = m - cond;
+        let drip = f.phi * m;
+        rec.links[e.link] = LinkRecord {
+            heat_w: f.q_conv_w + f.q_evap_w,
+            convective_w: f.q_conv_w,
+            evaporation_kg_s: m,
+            condensation_kg_s: cond,
+            collection_kg_s: cond - drip,
+            dripback_kg_s: drip,
+            leak_kg_s: leak,
+            distillate_enthalpy_w: (cond - drip) * f.hf_c,
+            leak_enthalpy_w: leak * (f.hf_w + f.hfg_w),
+        };
+    }
+    let heat_only = |heat_w: f64| LinkRecord {
+        heat_w,
+        ..LinkRecord::default()
+    };
+    for p in &tab.conductance_pairs {
+        rec.links[p.link] = heat_only(ua[p.link] * (t[p.a] - t[p.b]));
+    }
+    for e in &tab.conductance_edges {
+        rec.links[e.link] = heat_only(e.sign * (ua[e.link] * (t[e.node] - tb[e.boundary])));
+    }
+    for p in &tab.radiation_pairs {
+        let (ta2, tb2) = (t[p.a] * t[p.a], t[p.b] * t[p.b]);
+        rec.links[p.link] = heat_only(p.k * (ta2 * ta2 - tb2 * tb2));
+    }
+    for e in &tab.radiation_edges {
+        let tbd = tb[e.boundary];
+        let (ti2, tb2) = (t[e.node] * t[e.node], tbd * tbd);
+        rec.links[e.link] = heat_only(e.sign * (e.k * (ti2 * ti2 - tb2 * tb2)));
+    }
+    for v in &tab.variable {
+        let q = v
+            .model
+            .heat_flow(end_t(v.a, t, inputs), end_t(v.b, t, inputs))
+            .q_w;
+        rec.links[v.link] = heat_only(q);
     }
     for (i, node) in net.nodes.iter().enumerate() {
         let nr = &mut rec.nodes[i];
@@ -1166,9 +1190,8 @@ fn net_inflows_kg_s(net: &Network, rec: &StepRecord, inflow: &mut [f64]) {
     for (f, nr) in inflow.iter_mut().zip(&rec.nodes) {
         *f = nr.feed_kg_s - nr.drain_kg_s;
     }
-    for (link, lr) in net.links.iter().zip(&rec.links) {
-        if let (LinkKind::Enclosure { .. }, End::Node(w)) = (&link.kind, link.a) {
-            inflow[w.0] += lr.dripback_kg_s - lr.evaporation_kg_s;
-        }
+    for e in &net.table.enclosures {
+        let lr = &rec.links[e.link];
+        inflow[e.w] += lr.dripback_kg_s - lr.evaporation_kg_s;
     }
 }

@@ -6,9 +6,12 @@
 //! water the cloth holds) and backing. Boundaries: ambient air, sky, feed water. The feed
 //! enters the wick at the feed temperature; what does not evaporate runs off at the wick's
 //! temperature and carries its heat away ([`run_off_kg_s`]). When the feed is below the
-//! evaporation, the cloth dries: the network stops the step at the dry-out and the wick
-//! stops evaporating until the feed has wetted it again, so the evaporation is capped by the
-//! feed; the hours with a dry cloth are reported ([`KindDetails::Wick`]).
+//! evaporation, the cloth dries: the wick is a fed wick
+//! ([`NetworkBuilder::fed_wick_node`]), whose evaporation the network caps smoothly at what
+//! the feed (less the run-off) and the cloth's reserve can supply within a step, so a cloth
+//! fed below its evaporation sits partly dry at the feed's rate instead of drying out and
+//! re-wetting step after step; the hours with a dry cloth are reported
+//! ([`KindDetails::Wick`]).
 //!
 //! Internal transfer: Hollands et al.'s narrow inclined enclosure
 //! ([`InternalCorrelation::InclinedEnclosure`], plate spacing = the gap), not Dunkle's
@@ -186,7 +189,7 @@ impl WickStill {
         );
         // The cloth's own heat capacity (≈ 0.3 kg m⁻² of fibre) is small beside the water it
         // holds and is left out: the wick's capacity is its water.
-        let wick = b.water_node("wick", 0.0, WICK_DRY_SHARE * holding_kg);
+        let wick = b.fed_wick_node("wick", 0.0, WICK_DRY_SHARE * holding_kg);
         let backing = b.node("backing", BACKING_CAPACITY_J_M2_K * area);
         let cover_to_air = b.conductance(
             "cover to air",
