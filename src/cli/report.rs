@@ -22,7 +22,7 @@ use stillbench::report::{self, DemandChoice, ReportOptions, SheetChoice, Templat
     The yield ranges (P10/P50/P90) and the tornado chart come from the same Monte Carlo as\n\
     `stillbench uncertainty` (--samples, --seed: same figures for the same values); the\n\
     recommended variant is also sized over --years stochastic weather years at --confidence\n\
-    (as `stillbench size`, same seed). The workshop sheet is the recommended variant's unless\n\
+    (as `stillbench size --full`, same seed). The workshop sheet is the recommended variant's unless\n\
     --sheet names others. The published-device comparisons are rerun from the reconstructed\n\
     designs built into stillbench (designs/validation/ in the source).\n\n\
     Examples:\n  stillbench report\n  stillbench report designs/demo-coast.toml --out reports/coast --force\n  \

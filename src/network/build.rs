@@ -258,6 +258,14 @@ impl Network {
     pub fn links(&self) -> &[Link] {
         &self.links
     }
+
+    /// Edit the links in place (crate-internal, e.g. calibration factors), then rebuild the
+    /// solver's regrouped copy of them, so the two never disagree. Structure (ends, count)
+    /// must not change: only coefficients.
+    pub(crate) fn edit_links(&mut self, edit: impl FnOnce(&mut [Link])) {
+        edit(&mut self.links);
+        self.table = LinkTable::new(&self.links);
+    }
     /// The water property set shared by solver and energy balance.
     pub fn water(&self) -> &dyn WaterProperties {
         self.water.as_ref()

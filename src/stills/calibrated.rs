@@ -87,41 +87,47 @@ impl CalibratedModel {
         let mut is_cover = vec![false; net.nodes().len()];
         let mut base_links = Vec::new();
         let f_base = factors.base_loss_factor;
-        for i in 0..net.links.len() {
-            let (a, b, path) = (net.links[i].a, net.links[i].b, net.links[i].path);
-            let base = scales_base(&net, path, a, b);
-            let link = &mut net.links[i];
-            match &mut link.kind {
-                LinkKind::Enclosure {
-                    collected_fraction, ..
-                } => {
-                    *collected_fraction =
-                        (*collected_fraction * factors.distillate_factor).min(1.0);
-                }
-                LinkKind::Conductance { ua_w_k } if base => {
-                    base_links.push((LinkId(i), *ua_w_k));
-                    *ua_w_k *= f_base;
-                }
-                LinkKind::Radiation { exchange_area_m2 } => {
-                    if base {
-                        *exchange_area_m2 *= f_base;
+        let scaled: Vec<bool> = net
+            .links()
+            .iter()
+            .map(|l| scales_base(&net, l.path, l.a, l.b))
+            .collect();
+        // Edit through the network so its regrouped copy of the links follows.
+        net.edit_links(|links| {
+            for (i, link) in links.iter_mut().enumerate() {
+                let (a, b, base) = (link.a, link.b, scaled[i]);
+                match &mut link.kind {
+                    LinkKind::Enclosure {
+                        collected_fraction, ..
+                    } => {
+                        *collected_fraction =
+                            (*collected_fraction * factors.distillate_factor).min(1.0);
                     }
-                    if let (End::Node(n), Some(s)) = (a, sky)
-                        && b == End::Boundary(s)
-                        && let Some(c) = is_cover.get_mut(n.index())
-                    {
-                        *c = true;
+                    LinkKind::Conductance { ua_w_k } if base => {
+                        base_links.push((LinkId(i), *ua_w_k));
+                        *ua_w_k *= f_base;
                     }
+                    LinkKind::Radiation { exchange_area_m2 } => {
+                        if base {
+                            *exchange_area_m2 *= f_base;
+                        }
+                        if let (End::Node(n), Some(s)) = (a, sky)
+                            && b == End::Boundary(s)
+                            && let Some(c) = is_cover.get_mut(n.index())
+                        {
+                            *c = true;
+                        }
+                    }
+                    LinkKind::Variable { model } if base => {
+                        *model = Arc::new(ScaledConductance {
+                            inner: model.clone(),
+                            factor: f_base,
+                        });
+                    }
+                    _ => {}
                 }
-                LinkKind::Variable { model } if base => {
-                    *model = Arc::new(ScaledConductance {
-                        inner: model.clone(),
-                        factor: f_base,
-                    });
-                }
-                _ => {}
             }
-        }
+        });
         CalibratedModel {
             inner,
             net,

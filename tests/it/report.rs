@@ -345,7 +345,9 @@ fn hook_sections_render_when_present() {
         "{md}"
     );
     assert!(
-        md.contains("| pilot still A | site log | clear June days | 2.50 | 2.75 | L/m²/day | 10.0 % |"),
+        md.contains(
+            "| pilot still A | site log | clear June days | 2.50 | 2.75 | L/m²/day | 10.0 % |"
+        ),
         "{md}"
     );
     assert!(md.contains("| device B | paper | unknown | 3.00 | – | L/m²/day | – |"));
@@ -824,6 +826,7 @@ fn stages_equal_compare_size_and_sheets_all() {
         .args([
             "size",
             "designs/demo-coast.toml",
+            "--full",
             "--years",
             "2",
             "--seed",
