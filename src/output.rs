@@ -53,3 +53,21 @@ pub fn temporary_sibling(path: &Path) -> PathBuf {
         .unwrap_or_else(|| "output".into());
     path.with_file_name(format!(".{name}.tmp-{}", std::process::id()))
 }
+
+/// Escape text for XML, SVG or HTML content and attribute values (`& < > " '`); line breaks
+/// are kept. The one escaper of the report, its charts, the drawings and the calibration
+/// charts.
+pub fn escape_markup(s: &str) -> String {
+    let mut out = String::with_capacity(s.len());
+    for c in s.chars() {
+        match c {
+            '&' => out.push_str("&amp;"),
+            '<' => out.push_str("&lt;"),
+            '>' => out.push_str("&gt;"),
+            '"' => out.push_str("&quot;"),
+            '\'' => out.push_str("&#39;"),
+            c => out.push(c),
+        }
+    }
+    out
+}

@@ -8,9 +8,7 @@ use std::io::{self, Write};
 use super::fit::CalibrationReport;
 
 fn esc(s: &str) -> String {
-    s.replace('&', "&amp;")
-        .replace('<', "&lt;")
-        .replace('>', "&gt;")
+    crate::output::escape_markup(s)
 }
 
 const W: f64 = 640.0;

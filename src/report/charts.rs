@@ -47,25 +47,9 @@ fn top(xs: impl Iterator<Item = f64>, floor: f64) -> f64 {
     m * 1.1
 }
 
-/// Escape text for SVG/XML.
-pub fn xml_escape(s: &str) -> String {
-    let mut out = String::with_capacity(s.len());
-    for c in s.chars() {
-        match c {
-            '&' => out.push_str("&amp;"),
-            '<' => out.push_str("&lt;"),
-            '>' => out.push_str("&gt;"),
-            '"' => out.push_str("&quot;"),
-            '\'' => out.push_str("&#39;"),
-            c => out.push(c),
-        }
-    }
-    out
-}
-
 /// Give a plotters SVG a `<title>`, an ARIA label and the `chart` class.
 pub fn label_svg(svg: &str, name: &str, title: &str) -> String {
-    let t = xml_escape(title);
+    let t = crate::output::escape_markup(title);
     let id = format!("chart-{name}-title");
     let Some(open_end) = svg.find('>') else {
         return svg.to_owned();

@@ -262,7 +262,7 @@ pub fn markdown_to_html(
                 let text = caption.take().unwrap_or_default();
                 events.push(Event::Html(CowStr::from(format!(
                     "<figcaption>{}</figcaption></figure>",
-                    super::charts::xml_escape(&text)
+                    crate::output::escape_markup(&text)
                 ))));
             }
             Event::Text(t) | Event::Code(t) if caption.is_some() => {

@@ -60,21 +60,10 @@ pub struct Drawing {
     pub general_tolerance: String,
 }
 
-/// Escape text for SVG/XML content and attribute values.
+/// Escape text for SVG/XML content and attribute values; line breaks become spaces (a
+/// drawing's labels are one line each).
 pub fn escape_xml(s: &str) -> String {
-    let mut out = String::with_capacity(s.len());
-    for c in s.chars() {
-        match c {
-            '&' => out.push_str("&amp;"),
-            '<' => out.push_str("&lt;"),
-            '>' => out.push_str("&gt;"),
-            '"' => out.push_str("&quot;"),
-            '\'' => out.push_str("&#39;"),
-            '\n' | '\r' => out.push(' '),
-            c => out.push(c),
-        }
-    }
-    out
+    crate::output::escape_markup(&s.replace(['\n', '\r'], " "))
 }
 
 /// Where a view's origin sits in SVG coordinates (model z points up, SVG y down).
