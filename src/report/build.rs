@@ -450,30 +450,27 @@ pub fn build_context_with(
             .iter()
             .filter_map(|(_, e)| {
                 let units = sizing.iter().find(|s| s.name == e.name)?.units;
-                let ops: Vec<_> = e
-                    .result
-                    .months
-                    .iter()
-                    .filter_map(|m| m.operation.as_ref())
-                    .collect();
-                if ops.len() != 12 {
+                if e.result.months.len() != 12 {
                     return None;
                 }
-                let days = DAYS_IN_MONTH.iter().map(|d| f64::from(*d));
-                let flush_year: f64 = ops.iter().zip(days).map(|(o, d)| o.flush_l * d).sum();
-                let feed_year: f64 = ops
-                    .iter()
-                    .zip(DAYS_IN_MONTH)
-                    .map(|(o, d)| o.feed_l * f64::from(d))
-                    .sum();
+                // Every kind books what it is fed and what drains, flushes or runs off
+                // (basins by their operation, flow-through wicks and stages by their feed).
+                let year = |f: &dyn Fn(&crate::stills::MonthResult) -> f64| -> f64 {
+                    e.result
+                        .months
+                        .iter()
+                        .zip(DAYS_IN_MONTH)
+                        .map(|(m, d)| f(m) * f64::from(d))
+                        .sum()
+                };
                 let u = units as f64;
                 Some(EnvironmentRow {
                     name: e.name.clone(),
                     units,
-                    brine_l_day: u * flush_year / 365.0,
+                    brine_l_day: u * year(&|m| m.drained_l_day) / 365.0,
                     // Salt that enters with the feed leaves with the brine (or as crust that is
-                    // cleaned out): 1 kg of feed = 1 L, as the operation module books it.
-                    salt_kg_year: u * feed_year * loaded.design.site.feed_salinity_g_kg / 1000.0,
+                    // cleaned out) once the still runs periodically.
+                    salt_kg_year: u * year(&|m| m.fed_salt_kg_day),
                 })
             })
             .collect(),

@@ -366,7 +366,7 @@ pub struct ProfileHour {
     pub distillate_l: f64,
 }
 
-/// Brine and salt leaving each basin variant.
+/// Brine and salt leaving each variant (every kind books its feed and run-off).
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct EnvironmentSection {
     /// Per ranked variant with a basin, for the sized array.

@@ -509,6 +509,13 @@ pub struct MonthResult {
     pub energy: EnergySummary,
     /// Operation of the basin over the (last) day; `None` for a still without a basin.
     pub operation: Option<OperationDay>,
+    /// Brine (or feed water) fed on a mean day [L day⁻¹], every kind (1 kg = 1 L).
+    pub fed_l_day: f64,
+    /// Brine drained, flushed or run off on a mean day [L day⁻¹], every kind.
+    pub drained_l_day: f64,
+    /// Salt fed on a mean day [kg day⁻¹]; once the still runs periodically the same salt
+    /// leaves with the drained brine (or stays as crust to be cleaned out).
+    pub fed_salt_kg_day: f64,
 }
 
 /// The result every variant returns.
@@ -1063,6 +1070,9 @@ fn month_result(
         cycle_days,
         energy,
         operation: days.last().and_then(|d| d.operation.clone()),
+        fed_l_day: sum(&|d| d.balance.as_ref().map_or(0.0, |b| b.fed_kg)),
+        drained_l_day: sum(&|d| d.balance.as_ref().map_or(0.0, |b| b.drained_kg)),
+        fed_salt_kg_day: sum(&|d| d.balance.as_ref().map_or(0.0, |b| b.fed_salt_kg)),
     }
 }
 

@@ -927,3 +927,59 @@ fn out_of_range_confidence_and_samples_are_refused() {
         assert!(!out.exists());
     }
 }
+
+/// Brine and salt figures cover every kind, flow-through wicks and stages included, and the
+/// salt returned is the salt fed: feed at the site's salinity (35 g/kg in the demo, invented
+/// data) × the litres fed (1 kg = 1 L, as the model books it), summed over the year.
+#[test]
+fn environment_rows_cover_every_kind_and_return_the_feed_salt() {
+    let ctx = demo_context();
+    let rows = &ctx.environment.variants;
+    assert_eq!(rows.len(), 5, "every demo variant has brine figures");
+    let loaded = stillbench::design::load_demo().unwrap();
+    let weather = stillbench::stills::site_weather(&loaded).unwrap();
+    for kind in ["wick", "multi-effect"] {
+        let v = loaded
+            .design
+            .variants
+            .iter()
+            .find(|v| v.kind.name() == kind)
+            .unwrap();
+        let row = rows.iter().find(|r| r.name == v.name).unwrap();
+        let r = stillbench::stills::simulate_variant(
+            &loaded,
+            v,
+            &weather,
+            &stillbench::stills::RunOptions::default(),
+        )
+        .unwrap();
+        let days = [
+            31.0, 28.0, 31.0, 30.0, 31.0, 30.0, 31.0, 31.0, 30.0, 31.0, 30.0, 31.0,
+        ];
+        let fed_l_year: f64 = r
+            .months
+            .iter()
+            .zip(days)
+            .map(|(m, d)| m.fed_l_day * d)
+            .sum();
+        let drained_l_year: f64 = r
+            .months
+            .iter()
+            .zip(days)
+            .map(|(m, d)| m.drained_l_day * d)
+            .sum();
+        assert!(
+            drained_l_year > 0.0 && drained_l_year < fed_l_year,
+            "{kind}"
+        );
+        let u = row.units as f64;
+        let salt = u * fed_l_year * loaded.design.site.feed_salinity_g_kg / 1000.0;
+        // Tolerance 1e-6 relative: the model books salt as feed mass × salinity exactly.
+        assert!(
+            (row.salt_kg_year / salt - 1.0).abs() < 1e-6,
+            "{kind}: {} vs {salt}",
+            row.salt_kg_year
+        );
+        assert!((row.brine_l_day / (u * drained_l_year / 365.0) - 1.0).abs() < 1e-9);
+    }
+}
