@@ -56,6 +56,22 @@ pub struct Skipped {
     pub reason: String,
 }
 
+impl Skipped {
+    /// The error when every variant was skipped: names the first one and why, and what could
+    /// not be done (`doing`: "compared", "sized", "fitted").
+    pub fn none_left(skipped: &[Skipped], doing: &str) -> Error {
+        let (variant, reason) = skipped.first().map_or_else(
+            || (String::new(), "the design has no variants".to_owned()),
+            |s| (s.name.clone(), s.reason.clone()),
+        );
+        Error::Model {
+            variant,
+            at: String::new(),
+            reason: format!("no variant could be {doing}: {reason}"),
+        }
+    }
+}
+
 /// Every variant of a design: the ones with figures and the ones without.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct DesignEvaluation {
@@ -191,15 +207,7 @@ pub fn evaluate_design(
         }
     }
     if evaluated.is_empty() {
-        let (variant, reason) = skipped.first().map_or_else(
-            || (String::new(), "the design has no variants".to_owned()),
-            |s| (s.name.clone(), s.reason.clone()),
-        );
-        return Err(Error::Model {
-            variant,
-            at: String::new(),
-            reason: format!("no variant could be compared: {reason}"),
-        });
+        return Err(Skipped::none_left(&skipped, "compared"));
     }
     Ok(DesignEvaluation {
         currency: loaded.design.project.currency.clone(),

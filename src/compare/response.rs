@@ -424,15 +424,7 @@ pub fn fit_responses(
         });
     }
     if responses.is_empty() {
-        let (variant, reason) = skipped.first().map_or_else(
-            || (String::new(), "the design has no variants".to_owned()),
-            |s| (s.name.clone(), s.reason.clone()),
-        );
-        return Err(Error::Model {
-            variant,
-            at: String::new(),
-            reason: format!("no variant could be fitted: {reason}"),
-        });
+        return Err(Skipped::none_left(&skipped, "fitted"));
     }
     Ok(FittedResponses {
         responses,

@@ -657,15 +657,7 @@ pub fn size_design_by(
         }
     }
     if sized.is_empty() {
-        let (variant, reason) = skipped.first().map_or_else(
-            || (String::new(), "the design has no variants".to_owned()),
-            |s| (s.name.clone(), s.reason.clone()),
-        );
-        return Err(Error::Model {
-            variant,
-            at: String::new(),
-            reason: format!("no variant could be sized: {reason}"),
-        });
+        return Err(Skipped::none_left(&skipped, "sized"));
     }
     Ok(SizeReport {
         options: *opts,
