@@ -369,12 +369,6 @@ impl StillModel for DoubleSlopeStill {
         self.details.clone()
     }
 
-    fn initial_state(&self, t_k: f64, salinity_g_kg: f64) -> Result<State, NetworkError> {
-        let mut s = self.net.initial_state(t_k)?;
-        s.set_brine(&self.net, self.brine, self.set_brine_kg, salinity_g_kg)?;
-        Ok(s)
-    }
-
     /// Each face: its own outside coefficient (at its own lagged temperature) and its own
     /// plane-of-array sunlight through [`StillOptics::through_cover`]; inside, the
     /// [`gable_beam_shares`] and [`gable_diffuse_shares`] send the entering light to the

@@ -164,8 +164,14 @@ pub trait StillModel {
         self.details()
     }
     /// The state at the start of a run: every node at `t_k` \[K\], brine at its set mass and
-    /// `salinity_g_kg` [g kg⁻¹].
-    fn initial_state(&self, t_k: f64, salinity_g_kg: f64) -> Result<State, NetworkError>;
+    /// `salinity_g_kg` [g kg⁻¹]. By default the one water node ([`StillModel::brine_node`])
+    /// holds [`StillModel::set_brine_kg`]; a kind with several water nodes overrides it.
+    fn initial_state(&self, t_k: f64, salinity_g_kg: f64) -> Result<State, NetworkError> {
+        let net = self.network();
+        let mut s = net.initial_state(t_k)?;
+        s.set_brine(net, self.brine_node(), self.set_brine_kg(), salinity_g_kg)?;
+        Ok(s)
+    }
     /// Fill `inputs` for one weather record (computed once per record, not per iteration)
     /// and return where its sunlight went.
     fn hour_inputs(

@@ -353,12 +353,6 @@ impl StillModel for SteppedStill {
         self.details.clone()
     }
 
-    fn initial_state(&self, t_k: f64, salinity_g_kg: f64) -> Result<State, NetworkError> {
-        let mut s = self.net.initial_state(t_k)?;
-        s.set_brine(&self.net, self.brine, self.set_brine_kg, salinity_g_kg)?;
-        Ok(s)
-    }
-
     /// Cover optics through [`StillOptics::through_cover`]; inside, [`stair_beam_shares`] and
     /// [`stair_diffuse_shares`] send the light to the tray surfaces (then
     /// [`StillOptics::into_brine`]), to the risers (absorbed with the liner's absorptance,

@@ -361,11 +361,6 @@ impl StillModel for WickStill {
         }
         d
     }
-    fn initial_state(&self, t_k: f64, salinity_g_kg: f64) -> Result<State, NetworkError> {
-        let mut s = self.net.initial_state(t_k)?;
-        s.set_brine(&self.net, self.wick, self.holding_kg, salinity_g_kg)?;
-        Ok(s)
-    }
     fn hour_inputs(
         &self,
         ctx: &HourContext<'_>,
