@@ -21,7 +21,7 @@ pub const WICK_FEED_OVERLAP_M: f64 = 0.1;
 ///
 /// This is one face of each strip, the area of sheet bought: the heat-transfer area that the
 /// air sink's coefficient uses counts both faces and the tip, 2(H + t/2)/(s + t), about twice
-/// as much (≈ 9.2 for the default 50 mm fins at 10 mm spacing, 1 mm thick).
+/// as much (≈ 4.8 for the default 50 mm fins at 20 mm spacing, 1 mm thick; ≈ 9.2 at 10 mm).
 pub fn fin_sheet_area_ratio(fin_height_mm: f64, fin_spacing_mm: f64, fin_thickness_mm: f64) -> f64 {
     let pitch_mm = fin_spacing_mm + fin_thickness_mm;
     if fin_height_mm > 0.0 && pitch_mm > 0.0 {
@@ -834,7 +834,8 @@ pub fn takeoff(v: &Variant, index: usize, lib: &Library, c: &Costs) -> Takeoff {
                         "costs.items.fin",
                         &format!(
                             "H/(s + t)·(W/cos θ)·L = {fin_ratio:.2} m² of sheet per m² of \
-                             plate ({:.0} mm fins at {:.0} mm spacing, {:.1} mm thick)",
+                             plate ({:.0} mm fins at {:.0} mm spacing, {:.1} mm thick, running \
+                             up the slope)",
                             k.fin_height_mm, k.fin_spacing_mm, k.fin_thickness_mm
                         ),
                         Amount::AreaM2(fin_ratio * s * l),

@@ -24,17 +24,19 @@
 //! last plate sits q/h_sink above the sink temperature. Under one sun a 10-stage stack of
 //! 0.25 m delivers only ≈ 190–240 W m⁻² to the sink (the glazing and the edges take most of
 //! the ≈ 800 absorbed). A water body (200 W m⁻² K⁻¹) holds the last plate within ≈ 1 K; an
-//! air sink is computed from its geometry ([`AirSink`]: free convection from fins or a plain
-//! plate, fin efficiency, long-wave radiation), ≈ 54 W m⁻² K⁻¹ for the default fins and ≈ 3
-//! for a bare plain plate. The stack does not ride up rigidly: a diffusion gap passes latent
-//! heat in proportion to the slope of the saturation pressure, which roughly doubles every
-//! 12 K, so the coldest stages hold most of the stack's resistance, and the absorber rises by
-//! a fraction of the last plate's rise. With fins the last plate rises ≈ 6–7 K and the stack
-//! loses ≈ 2.5 %; a plain plate cannot shed the heat without rising ≈ 20 K and more, the
-//! whole stack rides up, and edge, frame, glazing and warm-drain losses take ≈ 20 % of the
-//! distillate (steady, Chiavazzo-like stack). The run's figures go into the result
-//! ([`KindDetails::MultiEffect`]: sink heat, day-mean rise, absorber and last-plate peaks and
-//! a note in words).
+//! air sink is computed from its geometry and the stack's tilt ([`AirSink`]): heated air
+//! leaves either up the slope (along fin channels that run up it, buoyancy g·sin β) or, near
+//! level, by spilling from under the plate over its edges, where fins closed at the top by
+//! the plate add almost nothing. ≈ 3 W m⁻² K⁻¹ level, fins or not; ≈ 17 for the default
+//! fins under a 0.25 m stack tilted 30° and ≈ 11 under the demo's 0.5 m stack at 15°. The
+//! stack does not ride up rigidly: a diffusion gap passes latent heat in proportion to the
+//! slope of the saturation pressure, which roughly doubles every 12 K, so the coldest stages hold most of the stack's resistance, and the absorber rises by
+//! a fraction of the last plate's rise. For the steady Chiavazzo-like stack: level, any air
+//! sink lets the last plate rise ≈ 22 K and the edge, frame, glazing and warm-drain losses
+//! take ≈ 20 % of the distillate; tilted 30°, fins rise ≈ 12 K and cost ≈ 6 % (a plain plate
+//! still ≈ 19 %). The tilt, not the fins alone, makes an air sink work. The run's figures go
+//! into the result ([`KindDetails::MultiEffect`]: sink heat, day-mean rise, absorber and
+//! last-plate peaks and a note in words).
 
 use super::materials::Materials;
 use std::sync::Arc;
@@ -54,7 +56,8 @@ use crate::network::{
     NetworkError, NodeId, State,
 };
 use crate::physics::constants::{
-    GAS_CONSTANT_J_MOL_K, MOLAR_MASS_AIR_KG_MOL, STEFAN_BOLTZMANN_W_M2_K4, ZERO_CELSIUS_K,
+    GAS_CONSTANT_J_MOL_K, GRAVITY_M_S2, MOLAR_MASS_AIR_KG_MOL, STEFAN_BOLTZMANN_W_M2_K4,
+    ZERO_CELSIUS_K,
 };
 use crate::physics::heat_transfer::{
     conduction_layers_u_w_m2_k, hollands_nusselt, stefan_diffusion_flux_kg_m2_s,
@@ -96,13 +99,29 @@ pub const SINK_RATING_DIFFERENCE_K: f64 = 10.0;
 /// Incropera, DeWitt, Bergman & Lavine, *Fundamentals of Heat and Mass Transfer*, 6th ed.,
 /// eq. 9.32 (from memory), with L = A/P (eq. 9.29).
 ///
-/// * `rayleigh` — Ra_L = gβΔT L³/(να) [-]
+/// * `rayleigh` — Ra_L = gβΔT L³/(να) [-], with g·cos β for a plate tilted β from level
 ///
 /// Validity: 10⁵ ≲ Ra_L ≲ 10¹⁰. *Notes*: applied outside that range too (a 0.25 m plate a
-/// few kelvin above the air sits near 10⁵); the plate of a tilted stack is treated as level
-/// (fine for the tilts of a multi-effect stack, up to a few tens of degrees).
+/// few kelvin above the air sits near 10⁵).
 pub fn downward_plate_nusselt(rayleigh: f64) -> f64 {
     0.27 * rayleigh.max(0.0).powf(0.25)
+}
+
+/// Nusselt number of the underside of a hot plate tilted from the vertical, laminar,
+/// Nu_L = 0.59 Ra_L^¼ with Ra_L on the buoyancy along the plate.
+///
+/// Incropera et al., 6th ed., eq. 9.24 with Table 9.1 (C = 0.59, n = ¼, 10⁴ ≲ Ra_L ≲ 10⁹),
+/// and §9.6.2: for the lower surface of a heated plate tilted θ from the vertical, g is
+/// replaced by g·cos θ (from memory). It is the isolated-plate limit of
+/// [`vertical_channel_nusselt`] (1/√2.873 = 0.590), so a plain plate and wide fins agree.
+///
+/// * `rayleigh_along` — Ra_L = g cos θ βΔT L³/(να) with L the plate's length along the
+///   slope [-]
+///
+/// Validity: θ up to ≈ 60° from the vertical (30° from level); closer to level the
+/// flow separates and [`downward_plate_nusselt`] takes over (see [`AirSink::coefficient`]).
+pub fn inclined_plate_nusselt(rayleigh_along: f64) -> f64 {
+    0.59 * rayleigh_along.max(0.0).powf(0.25)
 }
 
 /// Nusselt number on the spacing of a channel between vertical isothermal parallel plates
@@ -113,7 +132,7 @@ pub fn downward_plate_nusselt(rayleigh: f64) -> f64 {
 /// fully developed limit Nu_S = Ra_S (S/L)/24; the second the isolated plate,
 /// Nu_L = 0.59 Ra_L^¼.
 ///
-/// * `rayleigh_spacing` — Ra_S = gβΔT S³/(να) [-]
+/// * `rayleigh_spacing` — Ra_S = gβΔT S³/(να) [-], g along the channel
 /// * `spacing_m` — clear spacing S \[m\]; `height_m` — channel length along the flow L \[m\]
 ///
 /// Validity: laminar channels, Ra_S S/L up to ≈ 10⁵.
@@ -123,6 +142,20 @@ pub fn vertical_channel_nusselt(rayleigh_spacing: f64, spacing_m: f64, height_m:
         return 0.0;
     }
     (576.0 / (x * x) + 2.873 / x.sqrt()).powf(-0.5)
+}
+
+/// Fin spacing that sheds the most heat from a given base between isothermal plates,
+/// S_opt = 2.71 (Ra_S/(S³ L))^(−¼) \[m\].
+///
+/// Bar-Cohen & Rohsenow (1984), Incropera et al., 6th ed., eq. 9.47 (from memory).
+///
+/// * `rayleigh_per_m3` — Ra_S/S³ = g βΔT/(να) [m⁻³], g along the channel
+/// * `length_m` — channel length along the flow L \[m\]
+///
+/// Returns `None` without buoyancy along the channel (a level plate).
+pub fn optimum_fin_spacing_m(rayleigh_per_m3: f64, length_m: f64) -> Option<f64> {
+    let r = rayleigh_per_m3 / length_m.max(1e-6);
+    (r.is_finite() && r > 0.0).then(|| 2.71 * r.powf(-0.25))
 }
 
 /// Efficiency of a straight rectangular fin with an adiabatic tip at the corrected length
@@ -147,8 +180,9 @@ pub fn straight_fin_efficiency(
     if x < 1e-6 { 1.0 } else { x.tanh() / x }
 }
 
-/// An air-cooled sink under the last plate: straight fins (or a plain plate) of the plate's
-/// metal, in still air.
+/// An air-cooled sink under the last plate of a stack tilted β from level: straight fins
+/// (or a plain plate) of the plate's metal, in still air. The fins run up the slope, so the
+/// channels between them open at the low and high edges of the plate.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct AirSink {
     /// Fin height \[m\] (0: a plain plate).
@@ -163,6 +197,20 @@ pub struct AirSink {
     pub emissivity: f64,
     /// Characteristic length of the plate, area ÷ perimeter \[m\].
     pub plate_length_m: f64,
+    /// Length of the plate up the slope, which is the length of the channels \[m\].
+    pub slope_length_m: f64,
+    /// Tilt of the plate from level β \[rad\], [0, π/2).
+    pub tilt_rad: f64,
+}
+
+/// Which way an air sink sheds its heat (the larger of the two; see
+/// [`AirSink::coefficient`]).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SinkFlow {
+    /// Heated air rises up the slope along the plate (or the fin channels).
+    AlongSlope,
+    /// Heated air spills from under a (nearly) level plate over its edges.
+    UnderLevelPlate,
 }
 
 /// An air sink's coefficient per m² of plate, split into its parts.
@@ -173,8 +221,13 @@ pub struct AirSinkCoefficient {
     /// Long-wave radiation to surroundings at the air temperature, per m² of plate
     /// [W m⁻² K⁻¹].
     pub radiative_w_m2_k: f64,
-    /// Fin efficiency [-] (1 for a plain plate).
+    /// Fin efficiency in the flow up the slope [-] (1 for a plain plate).
     pub fin_efficiency: f64,
+    /// The flow that governs [`Self::convective_w_m2_k`].
+    pub flow: SinkFlow,
+    /// Fin spacing that would shed the most heat up this slope at this temperature
+    /// difference \[m\] (`None` for a level plate).
+    pub best_spacing_m: Option<f64>,
 }
 
 impl AirSinkCoefficient {
@@ -188,19 +241,32 @@ impl AirSink {
     /// Coefficient from the last plate at `t_plate_k` to still air at `t_air_k` \[K\] and
     /// total pressure `pressure_pa` \[Pa\], per m² of plate.
     ///
-    /// Plain plate (no fins): [`downward_plate_nusselt`] on L = A/P. Fins: each channel by
-    /// [`vertical_channel_nusselt`] with L = the fin height, the fins at
-    /// [`straight_fin_efficiency`] and the exposed plate between them at the channel
-    /// coefficient (overall surface efficiency, Incropera eq. 3.102–3.103, from memory).
-    /// Radiation: ε σ (T_p² + T_a²)(T_p + T_a) from the plate's plan area to surroundings
-    /// at the air temperature (the ground under the still, or the sky seen past it).
-    /// Air properties at the film temperature (dry air, ideal gas).
+    /// Two flows can carry the heat away, and the larger is taken:
+    /// * **Up the slope**, driven by the buoyancy along the plate, g·sin β. A plain plate is
+    ///   the underside of a heated inclined plate ([`inclined_plate_nusselt`] on the slope
+    ///   length); fins are parallel-plate channels as long as the slope
+    ///   ([`vertical_channel_nusselt`] with g·sin β), at [`straight_fin_efficiency`], the
+    ///   exposed plate between them at the channel coefficient (overall surface efficiency,
+    ///   Incropera eqs. 3.102–3.103, from memory). Replacing g by its component along the
+    ///   channels is what Mehrtash & Tari (2013), *Appl. Therm. Eng.* 51:1067–1075, found to
+    ///   hold for plate-fin sinks tilted from the vertical, facing down up to 60° from it
+    ///   (β ≥ 30°); nearer level it is extrapolated.
+    /// * **Under a level plate**, driven by the buoyancy across it, g·cos β: the heated air
+    ///   collects under the plate and spills over its edges ([`downward_plate_nusselt`] on
+    ///   L = A/P of the plan). For fins this counts only the plan of the array, not the fin
+    ///   surface: with the plate closing the channels' tops, the air between the fins must
+    ///   leave sideways along them. Dayan et al. (2004), *Int. J. Heat Mass Transfer*
+    ///   47:2849–2860, measured such downward-facing arrays to do somewhat better than their
+    ///   base alone; that gain is not taken (conservative).
     ///
-    /// *Notes*: the channel relation is for vertical channels open at both ends; fins
-    /// hanging under a nearly level stack have the plate closing the channel top and must
-    /// draw air in from the sides, so this is optimistic for them. Radiation from the fin
-    /// array counts the plan area only (the channels mostly see each other). The difference
-    /// is taken as at least [`SINK_MIN_DIFFERENCE_K`].
+    /// So fins help in proportion to the tilt: level, they add almost nothing over a plain
+    /// plate; tilted, a long channel chokes unless the spacing suits its length (see
+    /// [`optimum_fin_spacing_m`], quoted as [`AirSinkCoefficient::best_spacing_m`]).
+    ///
+    /// Radiation: ε σ (T_p² + T_a²)(T_p + T_a) from the plate's plan area to surroundings at
+    /// the air temperature (the ground under the still, or the sky seen past it); the fin
+    /// channels mostly see each other. Air properties at the film temperature (dry air, ideal
+    /// gas). The difference is taken as at least [`SINK_MIN_DIFFERENCE_K`].
     pub fn coefficient(
         &self,
         t_plate_k: f64,
@@ -214,20 +280,32 @@ impl AirSink {
         let rho = pressure_pa * MOLAR_MASS_AIR_KG_MOL / (GAS_CONSTANT_J_MOL_K * t_film);
         let nu = mu / rho;
         let alpha = k / (rho * humid_air::DRY_AIR_SPECIFIC_HEAT_J_KG_K);
-        let g_beta_dt = 9.81 * dt / t_film;
-        let ra = |l: f64| g_beta_dt * l * l * l / (nu * alpha);
-        let (convective, eta) = if self.fin_height_m <= 0.0 {
-            let l = self.plate_length_m.max(1e-3);
-            (downward_plate_nusselt(ra(l)) * k / l, 1.0)
+        let tilt = self.tilt_rad.clamp(0.0, std::f64::consts::FRAC_PI_2);
+        // Ra/L³ for the buoyancy along the slope and across the plate [m⁻³].
+        let ra_per_m3 = GRAVITY_M_S2 * dt / t_film / (nu * alpha);
+        let (along, across) = (ra_per_m3 * tilt.sin(), ra_per_m3 * tilt.cos());
+        let plan = self.plate_length_m.max(1e-3);
+        let level = downward_plate_nusselt(across * plan.powi(3)) * k / plan;
+        let slope = self.slope_length_m.max(1e-3);
+        let (up_slope, eta) = if self.fin_height_m <= 0.0 {
+            (
+                inclined_plate_nusselt(along * slope.powi(3)) * k / slope,
+                1.0,
+            )
         } else {
             let s = self.fin_spacing_m.max(1e-4);
             let t = self.fin_thickness_m;
-            let h = vertical_channel_nusselt(ra(s), s, self.fin_height_m) * k / s;
+            let h = vertical_channel_nusselt(along * s.powi(3), s, slope) * k / s;
             let eta = straight_fin_efficiency(h, self.conductivity_w_m_k, t, self.fin_height_m);
             let per_m = 1.0 / (s + t);
             let fin_area = 2.0 * (self.fin_height_m + 0.5 * t) * per_m;
             let base_area = (1.0 - t * per_m).max(0.0);
             (h * (base_area + eta * fin_area), eta)
+        };
+        let (convective, flow) = if up_slope >= level {
+            (up_slope, SinkFlow::AlongSlope)
+        } else {
+            (level, SinkFlow::UnderLevelPlate)
         };
         let (tp, ta) = (t_plate_k, t_air_k);
         let radiative =
@@ -236,6 +314,8 @@ impl AirSink {
             convective_w_m2_k: convective,
             radiative_w_m2_k: radiative,
             fin_efficiency: eta,
+            flow,
+            best_spacing_m: optimum_fin_spacing_m(along, slope),
         }
     }
 }
@@ -513,6 +593,8 @@ impl MultiEffectStill {
                 conductivity_w_m_k: plate.conductivity_w_m_k,
                 emissivity: k.sink_emissivity.unwrap_or(plate.emissivity),
                 plate_length_m: area / perimeter_m.max(1e-6),
+                slope_length_m: variant.width_m / tilt.cos(),
+                tilt_rad: tilt,
             }),
             _ => None,
         };
@@ -523,27 +605,7 @@ impl MultiEffectStill {
                     SINK_RATING_AIR_K,
                     pressure_pa,
                 );
-                let shape = if a.fin_height_m > 0.0 {
-                    format!(
-                        "fins {:.0} mm high at {:.0} mm spacing, {:.1} mm thick, fin \
-                         efficiency {:.2}",
-                        a.fin_height_m * 1000.0,
-                        a.fin_spacing_m * 1000.0,
-                        a.fin_thickness_m * 1000.0,
-                        c.fin_efficiency
-                    )
-                } else {
-                    "a plain plate facing down, no fins".to_owned()
-                };
-                (
-                    c.total_w_m2_k(),
-                    format!(
-                        "The air sink is {shape}: {:.1} W/m²K by free convection plus {:.1} by \
-                         radiation (emissivity {:.2}) with the plate 10 K above 30 °C air; the \
-                         coefficient follows the plate hour by hour.",
-                        c.convective_w_m2_k, c.radiative_w_m2_k, a.emissivity
-                    ),
-                )
+                (c.total_w_m2_k(), air_sink_basis(a, &c))
             }
             None => (k.sink_coefficient(), String::new()),
         };
@@ -857,6 +919,73 @@ impl StillModel for MultiEffectStill {
         }
         Ok(split)
     }
+}
+
+/// The sentences that say how an air sink was rated and what governs it, for the result's
+/// sink note. `c` is the coefficient at the rating point ([`SINK_RATING_AIR_K`],
+/// [`SINK_RATING_DIFFERENCE_K`]).
+pub fn air_sink_basis(a: &AirSink, c: &AirSinkCoefficient) -> String {
+    let tilt_deg = a.tilt_rad.to_degrees();
+    let finned = a.fin_height_m > 0.0;
+    let shape = if finned {
+        format!(
+            "fins {:.0} mm high at {:.0} mm spacing, {:.1} mm thick, running up the slope",
+            a.fin_height_m * 1000.0,
+            a.fin_spacing_m * 1000.0,
+            a.fin_thickness_m * 1000.0,
+        )
+    } else {
+        "a plain plate facing down, no fins".to_owned()
+    };
+    let mut text = format!(
+        "The air sink is {shape}: {:.1} W/m²K by free convection plus {:.1} by radiation \
+         (emissivity {:.2}) with the plate 10 K above 30 °C air; the coefficient follows the \
+         plate hour by hour.",
+        c.convective_w_m2_k, c.radiative_w_m2_k, a.emissivity
+    );
+    match c.flow {
+        SinkFlow::UnderLevelPlate => {
+            text.push_str(&format!(
+                " At {tilt_deg:.0}° the stack is too close to level for heated air to rise \
+                 along the plate: it gathers under the plate and spills over the edges (a hot \
+                 plate facing down, Incropera eq. 9.32)"
+            ));
+            text.push_str(if finned {
+                ", and the fins, closed at the top by the plate, add almost nothing. Tilt the \
+                 stack so air can rise along the fins, or float it on water."
+            } else {
+                "."
+            });
+        }
+        SinkFlow::AlongSlope if finned => {
+            text.push_str(&format!(
+                " Heated air rises up the {:.2} m slope at {tilt_deg:.0}° through the fin \
+                 channels (Bar-Cohen & Rohsenow with buoyancy g·sin β, fin efficiency {:.2}).",
+                a.slope_length_m, c.fin_efficiency
+            ));
+            if tilt_deg < 30.0 - 1e-6 {
+                text.push_str(
+                    " Below 30° of tilt that relation is extrapolated from tests on steeper \
+                     sinks; treat the figure as optimistic.",
+                );
+            }
+        }
+        SinkFlow::AlongSlope => text.push_str(&format!(
+            " Heated air rises up the {:.2} m slope at {tilt_deg:.0}° (the underside of an \
+             inclined plate, Incropera eq. 9.24 with buoyancy g·sin β).",
+            a.slope_length_m
+        )),
+    }
+    if let (true, Some(best)) = (finned, c.best_spacing_m) {
+        let (now, best_mm) = (a.fin_spacing_m * 1000.0, best * 1000.0);
+        if (now / best_mm - 1.0).abs() > 0.25 {
+            text.push_str(&format!(
+                " For this slope and tilt fins about {best_mm:.0} mm apart would shed the \
+                 most heat (Bar-Cohen & Rohsenow optimum spacing; these are {now:.0} mm)."
+            ));
+        }
+    }
+    text
 }
 
 /// The sink's effect on the stack in words, with a run's figures, for reports.
