@@ -44,6 +44,7 @@
 //! ```
 
 mod balance;
+mod band;
 mod build;
 mod drive;
 mod models;

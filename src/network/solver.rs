@@ -13,6 +13,8 @@
 
 use nalgebra::DMatrix;
 
+use super::band::BandMatrix;
+
 use super::build::{End, Network, NetworkError};
 use super::state::{Inputs, State, TEMPERATURE_RANGE_K, dissolved_salinity, salinity};
 use super::table::EnclosureLink;
@@ -326,9 +328,9 @@ struct Scratch {
     scale: Vec<f64>,
     scale_trial: Vec<f64>,
     dx: Vec<f64>,
-    jac: DMatrix<f64>,
-    jac_trial: DMatrix<f64>,
-    lu: DMatrix<f64>,
+    jac: BandMatrix,
+    jac_trial: BandMatrix,
+    lu: BandMatrix,
     /// Enclosure flows per link at `t` (zero for other links), kept for the step's record.
     flows: Vec<EnclosureFlows>,
     /// The same at `t_trial`.
@@ -380,9 +382,9 @@ impl<'n> Solver<'n> {
                 scale: vec![0.0; n],
                 scale_trial: vec![0.0; n],
                 dx: vec![0.0; n],
-                jac: DMatrix::zeros(n, n),
-                jac_trial: DMatrix::zeros(n, n),
-                lu: DMatrix::zeros(n, n),
+                jac: BandMatrix::zeros(n, net.bandwidth),
+                jac_trial: BandMatrix::zeros(n, net.bandwidth),
+                lu: BandMatrix::zeros(n, net.bandwidth),
                 flows: vec![EnclosureFlows::default(); net.links.len()],
                 flows_trial: vec![EnclosureFlows::default(); net.links.len()],
             },
@@ -487,7 +489,7 @@ impl<'n> Solver<'n> {
         }
         let inv_dt = self.prepare(state, inputs, dt_s)?;
         let mut scale = vec![0.0; n];
-        jacobian.fill(0.0);
+        let mut band = BandMatrix::zeros(n, self.net.bandwidth);
         assemble(
             self.net,
             &self.consts,
@@ -496,9 +498,14 @@ impl<'n> Solver<'n> {
             t_trial_k,
             residual_w,
             &mut scale,
-            jacobian,
+            &mut band,
             &mut self.ws.flows_trial,
         );
+        for j in 0..n {
+            for i in 0..n {
+                jacobian[(i, j)] = band.get(i, j);
+            }
+        }
         Ok(())
     }
 
@@ -687,11 +694,11 @@ impl<'n> Solver<'n> {
             }
             k += 1;
             // Solve J·dx = −r in the band of the Jacobian.
-            copy_band(&ws.jac, &mut ws.lu, net.bandwidth);
+            ws.lu.copy_from(&ws.jac);
             for (d, r) in ws.dx.iter_mut().zip(&ws.r) {
                 *d = -r;
             }
-            if !solve_banded(&mut ws.lu, &mut ws.dx, net.bandwidth) {
+            if !ws.lu.solve_in_place(&mut ws.dx) {
                 return Err(FailReason::SingularJacobian { iteration: k });
             }
             let big = largest(&ws.dx);
@@ -753,113 +760,6 @@ fn largest(v: &[f64]) -> f64 {
 
 fn norm2(v: &[f64]) -> f64 {
     v.iter().map(|x| x * x).sum::<f64>().sqrt()
-}
-
-/// Set the band of half-width `kl` of `jac` to zero. Every link joins nodes at most `kl`
-/// apart ([`Network::bandwidth`]), so entries outside the band are never written and stay
-/// zero from the matrix's creation; clearing only the band saves the work of a full fill.
-fn zero_band(jac: &mut DMatrix<f64>, kl: usize) {
-    let n = jac.nrows();
-    if kl + 1 >= n {
-        jac.fill(0.0);
-        return;
-    }
-    // Column-major storage: column j is `n` entries from j·n. Plain slices avoid building a
-    // view per column in this hot path.
-    let a = jac.as_mut_slice();
-    for j in 0..n {
-        let lo = j.saturating_sub(kl);
-        let hi = (j + kl).min(n - 1);
-        a[j * n + lo..=j * n + hi].fill(0.0);
-    }
-}
-
-/// Copy the part of `jac` that banded elimination with pivoting reads and writes into `lu`:
-/// per column j rows j − 2·kl … j + kl (the upper band widens to 2·kl under pivoting).
-/// Outside that region `lu` is never written, so it stays zero from its creation.
-fn copy_band(jac: &DMatrix<f64>, lu: &mut DMatrix<f64>, kl: usize) {
-    let n = jac.nrows();
-    if kl + 1 >= n || lu.nrows() != n || lu.ncols() != jac.ncols() {
-        lu.copy_from(jac);
-        return;
-    }
-    let (src, dst) = (jac.as_slice(), lu.as_mut_slice());
-    for j in 0..n {
-        let lo = j.saturating_sub(2 * kl);
-        let hi = (j + kl).min(n - 1);
-        dst[j * n + lo..=j * n + hi].copy_from_slice(&src[j * n + lo..=j * n + hi]);
-    }
-}
-
-/// Gaussian elimination with partial pivoting restricted to a band of half-width `kl`
-/// (pivoting widens the upper band to 2·kl). Dense when `kl` ≥ n − 1. Solves in place:
-/// `b` becomes the solution. Returns false when a pivot vanishes.
-fn solve_banded(m: &mut DMatrix<f64>, b: &mut [f64], kl: usize) -> bool {
-    let n = b.len();
-    if n == 0 {
-        return true;
-    }
-    if m.nrows() != n || m.ncols() != n {
-        return false;
-    }
-    // Column-major: entry (i, j) at i + j·n.
-    let a = m.as_mut_slice();
-    // Largest magnitude in the band (the only non-zero entries); a NaN anywhere fails.
-    let mut amax = 0.0_f64;
-    let mut nan = false;
-    for j in 0..n {
-        for v in &a[j * n + j.saturating_sub(kl)..=j * n + (j + kl).min(n - 1)] {
-            let v = v.abs();
-            nan |= v.is_nan();
-            if v > amax {
-                amax = v;
-            }
-        }
-    }
-    let tiny = amax * 1e-14;
-    if nan || !(amax.is_finite() && amax > 0.0) {
-        return false;
-    }
-    for k in 0..n {
-        let rmax = (k + kl).min(n - 1);
-        let cmax = (k + 2 * kl).min(n - 1);
-        let mut p = k;
-        let mut best = a[k + k * n].abs();
-        for i in k + 1..=rmax {
-            let v = a[i + k * n].abs();
-            if v > best {
-                best = v;
-                p = i;
-            }
-        }
-        if best <= tiny {
-            return false;
-        }
-        if p != k {
-            for j in k..=cmax {
-                a.swap(k + j * n, p + j * n);
-            }
-            b.swap(k, p);
-        }
-        let piv = a[k + k * n];
-        for i in k + 1..=rmax {
-            let f = a[i + k * n] / piv;
-            if f != 0.0 {
-                for j in k + 1..=cmax {
-                    a[i + j * n] -= f * a[k + j * n];
-                }
-                b[i] -= f * b[k];
-            }
-        }
-    }
-    for k in (0..n).rev() {
-        let mut s = b[k];
-        for j in k + 1..=(k + 2 * kl).min(n - 1) {
-            s -= a[k + j * n] * b[j];
-        }
-        b[k] = s / a[k + k * n];
-    }
-    true
 }
 
 fn end_t(e: End, t: &[f64], inputs: &Inputs) -> f64 {
@@ -979,14 +879,11 @@ fn assemble(
     t: &[f64],
     r: &mut [f64],
     scale: &mut [f64],
-    jac: &mut DMatrix<f64>,
+    jac: &mut BandMatrix,
     flows: &mut [EnclosureFlows],
 ) {
     let water = net.water.as_ref();
-    zero_band(jac, net.bandwidth);
-    // Column-major: entry (i, j) at i + j·nr (plain slice indexing in this hot loop).
-    let nr = jac.nrows();
-    let jm = jac.as_mut_slice();
+    jac.clear();
     for (i, node) in net.nodes.iter().enumerate() {
         let ti = t[i];
         let mut res = -inputs.source_w[i];
@@ -1025,7 +922,7 @@ fn assemble(
         }
         r[i] = res;
         scale[i] = sc;
-        jm[i + i * nr] = diag;
+        jac.add(i, i, diag);
     }
     let tb = &inputs.boundary_t_k;
     let ua = &inputs.conductance_w_k;
@@ -1037,10 +934,10 @@ fn assemble(
         r[cn] -= f.g_c;
         scale[w] += f.g_w.abs();
         scale[cn] += f.g_c.abs();
-        jm[w + w * nr] -= f.dgw_dtw;
-        jm[w + cn * nr] -= f.dgw_dtc;
-        jm[cn + w * nr] -= f.dgc_dtw;
-        jm[cn + cn * nr] -= f.dgc_dtc;
+        jac.add(w, w, -(f.dgw_dtw));
+        jac.add(w, cn, -(f.dgw_dtc));
+        jac.add(cn, w, -(f.dgc_dtw));
+        jac.add(cn, cn, -(f.dgc_dtc));
         flows[e.link] = f;
     }
     for p in &tab.conductance_pairs {
@@ -1051,10 +948,10 @@ fn assemble(
         r[b] -= q;
         scale[a] += q.abs();
         scale[b] += q.abs();
-        jm[a + a * nr] += u;
-        jm[a + b * nr] -= u;
-        jm[b + b * nr] += u;
-        jm[b + a * nr] -= u;
+        jac.add(a, a, u);
+        jac.add(a, b, -(u));
+        jac.add(b, b, u);
+        jac.add(b, a, -(u));
     }
     for e in &tab.conductance_edges {
         let i = e.node;
@@ -1062,7 +959,7 @@ fn assemble(
         let q = u * (t[i] - tb[e.boundary]);
         r[i] += q;
         scale[i] += q.abs();
-        jm[i + i * nr] += u;
+        jac.add(i, i, u);
     }
     for p in &tab.radiation_pairs {
         let (a, b) = (p.a, p.b);
@@ -1073,10 +970,10 @@ fn assemble(
         r[b] -= q;
         scale[a] += q.abs();
         scale[b] += q.abs();
-        jm[a + a * nr] += dqa;
-        jm[a + b * nr] -= dqb;
-        jm[b + b * nr] += dqb;
-        jm[b + a * nr] -= dqa;
+        jac.add(a, a, dqa);
+        jac.add(a, b, -(dqb));
+        jac.add(b, b, dqb);
+        jac.add(b, a, -(dqa));
     }
     for e in &tab.radiation_edges {
         let i = e.node;
@@ -1085,7 +982,7 @@ fn assemble(
         let q = e.k * (ti2 * ti2 - tb2 * tb2);
         r[i] += q;
         scale[i] += q.abs();
-        jm[i + i * nr] += 4.0 * e.k * ti2 * t[i];
+        jac.add(i, i, 4.0 * e.k * ti2 * t[i]);
     }
     for v in &tab.variable {
         let ta = end_t(v.a, t, inputs);
@@ -1095,17 +992,17 @@ fn assemble(
         if let End::Node(a) = v.a {
             r[a.0] += q;
             scale[a.0] += q.abs();
-            jm[a.0 + a.0 * nr] += dqa;
+            jac.add(a.0, a.0, dqa);
             if let End::Node(b) = v.b {
-                jm[a.0 + b.0 * nr] += dqb;
+                jac.add(a.0, b.0, dqb);
             }
         }
         if let End::Node(b) = v.b {
             r[b.0] -= q;
             scale[b.0] += q.abs();
-            jm[b.0 + b.0 * nr] -= dqb;
+            jac.add(b.0, b.0, -(dqb));
             if let End::Node(a) = v.a {
-                jm[b.0 + a.0 * nr] -= dqa;
+                jac.add(b.0, a.0, -(dqa));
             }
         }
     }
