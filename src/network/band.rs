@@ -9,6 +9,26 @@
 //! tridiagonal network (`kl` = 1) keeps 4 numbers per node instead of n, so clearing,
 //! copying and eliminating cost O(n) rather than O(n²).
 
+/// Where entry (i, j) of a [`BandMatrix`] sits in its storage: 2·kl + i − j + j·ld =
+/// 2·kl + i + j·(ld − 1).
+#[derive(Debug, Clone, Copy)]
+pub(crate) struct BandIndex {
+    offset: usize,
+    step: usize,
+}
+
+impl BandIndex {
+    /// Storage position of entry (i, j).
+    #[inline(always)]
+    pub(crate) fn at(self, i: usize, j: usize) -> usize {
+        debug_assert!(
+            i.abs_diff(j) <= self.offset / 2,
+            "({i}, {j}) outside the band"
+        );
+        self.offset + i + j * self.step
+    }
+}
+
 /// A square matrix of order `n` with `kl` sub- and super-diagonals, plus room for the
 /// fill-in of pivoting.
 #[derive(Debug, Clone, PartialEq)]
@@ -38,8 +58,7 @@ impl BandMatrix {
     /// and j − i ≤ 2·kl above it.
     #[inline(always)]
     fn at(&self, i: usize, j: usize) -> usize {
-        // 2kl + i − j + j·ld, ordered so that no intermediate underflows.
-        2 * self.kl + i + j * self.ld - j
+        2 * self.kl + i + j * (self.ld - 1)
     }
 
     /// Set every entry to zero.
@@ -49,11 +68,24 @@ impl BandMatrix {
 
     /// Add `v` to entry (i, j). Entries outside the band are a caller's error: they panic
     /// in debug builds and are never written (the network guarantees |i − j| ≤ kl).
-    #[inline(always)]
+    #[cfg(test)]
     pub(crate) fn add(&mut self, i: usize, j: usize, v: f64) {
         debug_assert!(i.abs_diff(j) <= self.kl && i < self.n && j < self.n);
         let k = self.at(i, j);
         self.ab[k] += v;
+    }
+
+    /// The storage and its index map, for filling many entries in a hot loop without
+    /// re-reading the shape for each (the caller keeps to the band, as for [`Self::add`]).
+    #[inline(always)]
+    pub(crate) fn parts(&mut self) -> (BandIndex, &mut [f64]) {
+        (
+            BandIndex {
+                offset: 2 * self.kl,
+                step: self.ld - 1,
+            },
+            &mut self.ab,
+        )
     }
 
     /// Entry (i, j); zero outside the band.

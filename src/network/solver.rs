@@ -884,6 +884,7 @@ fn assemble(
 ) {
     let water = net.water.as_ref();
     jac.clear();
+    let (ix, jm) = jac.parts();
     for (i, node) in net.nodes.iter().enumerate() {
         let ti = t[i];
         let mut res = -inputs.source_w[i];
@@ -922,7 +923,7 @@ fn assemble(
         }
         r[i] = res;
         scale[i] = sc;
-        jac.add(i, i, diag);
+        jm[ix.at(i, i)] += diag;
     }
     let tb = &inputs.boundary_t_k;
     let ua = &inputs.conductance_w_k;
@@ -934,10 +935,10 @@ fn assemble(
         r[cn] -= f.g_c;
         scale[w] += f.g_w.abs();
         scale[cn] += f.g_c.abs();
-        jac.add(w, w, -(f.dgw_dtw));
-        jac.add(w, cn, -(f.dgw_dtc));
-        jac.add(cn, w, -(f.dgc_dtw));
-        jac.add(cn, cn, -(f.dgc_dtc));
+        jm[ix.at(w, w)] -= f.dgw_dtw;
+        jm[ix.at(w, cn)] -= f.dgw_dtc;
+        jm[ix.at(cn, w)] -= f.dgc_dtw;
+        jm[ix.at(cn, cn)] -= f.dgc_dtc;
         flows[e.link] = f;
     }
     for p in &tab.conductance_pairs {
@@ -948,10 +949,10 @@ fn assemble(
         r[b] -= q;
         scale[a] += q.abs();
         scale[b] += q.abs();
-        jac.add(a, a, u);
-        jac.add(a, b, -(u));
-        jac.add(b, b, u);
-        jac.add(b, a, -(u));
+        jm[ix.at(a, a)] += u;
+        jm[ix.at(a, b)] -= u;
+        jm[ix.at(b, b)] += u;
+        jm[ix.at(b, a)] -= u;
     }
     for e in &tab.conductance_edges {
         let i = e.node;
@@ -959,7 +960,7 @@ fn assemble(
         let q = u * (t[i] - tb[e.boundary]);
         r[i] += q;
         scale[i] += q.abs();
-        jac.add(i, i, u);
+        jm[ix.at(i, i)] += u;
     }
     for p in &tab.radiation_pairs {
         let (a, b) = (p.a, p.b);
@@ -970,10 +971,10 @@ fn assemble(
         r[b] -= q;
         scale[a] += q.abs();
         scale[b] += q.abs();
-        jac.add(a, a, dqa);
-        jac.add(a, b, -(dqb));
-        jac.add(b, b, dqb);
-        jac.add(b, a, -(dqa));
+        jm[ix.at(a, a)] += dqa;
+        jm[ix.at(a, b)] -= dqb;
+        jm[ix.at(b, b)] += dqb;
+        jm[ix.at(b, a)] -= dqa;
     }
     for e in &tab.radiation_edges {
         let i = e.node;
@@ -982,7 +983,7 @@ fn assemble(
         let q = e.k * (ti2 * ti2 - tb2 * tb2);
         r[i] += q;
         scale[i] += q.abs();
-        jac.add(i, i, 4.0 * e.k * ti2 * t[i]);
+        jm[ix.at(i, i)] += 4.0 * e.k * ti2 * t[i];
     }
     for v in &tab.variable {
         let ta = end_t(v.a, t, inputs);
@@ -992,17 +993,17 @@ fn assemble(
         if let End::Node(a) = v.a {
             r[a.0] += q;
             scale[a.0] += q.abs();
-            jac.add(a.0, a.0, dqa);
+            jm[ix.at(a.0, a.0)] += dqa;
             if let End::Node(b) = v.b {
-                jac.add(a.0, b.0, dqb);
+                jm[ix.at(a.0, b.0)] += dqb;
             }
         }
         if let End::Node(b) = v.b {
             r[b.0] -= q;
             scale[b.0] += q.abs();
-            jac.add(b.0, b.0, -(dqb));
+            jm[ix.at(b.0, b.0)] -= dqb;
             if let End::Node(a) = v.a {
-                jac.add(b.0, a.0, -(dqa));
+                jm[ix.at(b.0, a.0)] -= dqa;
             }
         }
     }
