@@ -858,7 +858,8 @@ fn default_fin_thickness() -> f64 {
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct MultiEffect {
-    /// Tilt of the glazing and stack [deg], [0, 90).
+    /// Tilt of the glazing and stack [deg], [0, 90); the slope runs across `width_m`, and an
+    /// air sink's heated air leaves up it.
     pub glazing_tilt_deg: f64,
     /// Number of stages, [1, 20].
     pub stages: u32,
@@ -879,8 +880,8 @@ pub struct MultiEffect {
     /// Air gap between the absorber and the glazing \[mm\], [5, 100]; default 20.
     #[serde(default = "default_me_glazing_gap")]
     pub glazing_gap_mm: f64,
-    /// Air sink: height of the straight fins under the last plate \[mm\], [0, 200]; 0 is a
-    /// plain plate; default 50.
+    /// Air sink: height of the straight fins under the last plate, running up the slope
+    /// \[mm\], [0, 200]; 0 is a plain plate; default 50.
     #[serde(default = "default_fin_height")]
     pub fin_height_mm: f64,
     /// Air sink: clear spacing between neighbouring fins \[mm\], [3, 100]; default 20 (near the
