@@ -413,6 +413,17 @@ pub fn build_context_with(
             .collect(),
         residual_bound: MAX_BALANCE_RESIDUAL_FRACTION,
         assumptions: assumptions(loaded),
+        kind_findings: ordered
+            .iter()
+            .filter_map(|(_, e)| {
+                let lines = kind_findings(&e.result.details);
+                (!lines.is_empty()).then(|| KindFindings {
+                    name: e.name.clone(),
+                    kind: e.kind.clone(),
+                    lines,
+                })
+            })
+            .collect(),
     };
     let life_cycle = LifeCycleSection {
         variants: ordered
@@ -618,6 +629,73 @@ fn site_section(loaded: &LoadedDesign, top: &Evaluation) -> SiteSection {
         feed_salinity_g_kg: s.feed_salinity_g_kg,
         source,
         months,
+    }
+}
+
+/// The kind-specific figures of a year in sentences: stages, heat reuse and the sink of a
+/// multi-effect still; dry cloth and run-off of a wick still. Nothing for the basin kinds,
+/// whose story the common tables tell.
+fn kind_findings(details: &stills::KindDetails) -> Vec<String> {
+    let list = |v: &[f64], digits: usize| {
+        v.iter()
+            .map(|x| format!("{x:.digits$}"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    match details {
+        stills::KindDetails::MultiEffect {
+            stages,
+            gap_mm,
+            stage_max_c,
+            stage_l_m2_day,
+            stage_dry_hour_fraction,
+            solar_to_vapour_efficiency,
+            gain_output_ratio,
+            sink_note,
+            ..
+        } => {
+            let mut lines = vec![
+                format!(
+                    "{stages} stages with {gap_mm:.0} mm gaps: gain output ratio \
+                     {gain_output_ratio:.2} (distillate × latent heat ÷ heat delivered to the \
+                     first stage, which cannot exceed the number of stages) and \
+                     solar-to-vapour efficiency {:.0} %{}.",
+                    100.0 * solar_to_vapour_efficiency,
+                    if *solar_to_vapour_efficiency > 1.0 {
+                        " (above 100 % because each stage reuses the heat of the one above)"
+                    } else {
+                        ""
+                    }
+                ),
+                format!(
+                    "Per stage, first to last: distillate {} L/m²/day; peak wick temperature \
+                     {} °C.",
+                    list(stage_l_m2_day, 2),
+                    list(stage_max_c, 1)
+                ),
+            ];
+            let worst_dry = stage_dry_hour_fraction.iter().copied().fold(0.0, f64::max);
+            if worst_dry > 0.0 {
+                lines.push(format!(
+                    "The feed held a stage's evaporation in up to {:.0} % of the hours \
+                     (its wick partly dry); more feed per stage would lift the yield a little \
+                     and keep salt from building up in the cloth.",
+                    100.0 * worst_dry
+                ));
+            }
+            lines.push(sink_note.clone());
+            lines
+        }
+        stills::KindDetails::Wick {
+            dry_hour_fraction,
+            run_off_l_day,
+            ..
+        } => vec![format!(
+            "The cloth was dry at some moment in {:.0} % of the hours; {run_off_l_day:.1} L of \
+             warm brine a day runs off the wick, carrying its heat away.",
+            100.0 * dry_hour_fraction
+        )],
+        _ => Vec::new(),
     }
 }
 

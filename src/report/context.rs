@@ -264,6 +264,20 @@ pub struct JustificationSection {
     pub residual_bound: f64,
     /// Assumptions and defaults, one sentence each.
     pub assumptions: Vec<String>,
+    /// What the model of each wick and multi-effect variant found inside the still (stage
+    /// temperatures, gain output ratio, dry cloth, what the sink does), in ranking order.
+    pub kind_findings: Vec<KindFindings>,
+}
+
+/// Inside one variant: the kind-specific figures of its year, in sentences.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct KindFindings {
+    /// Variant name.
+    pub name: String,
+    /// Kind.
+    pub kind: String,
+    /// One sentence or short paragraph each.
+    pub lines: Vec<String>,
 }
 
 /// Energy balance and single-effect ceiling of one variant.

@@ -193,6 +193,14 @@ fn demo_markdown_has_every_funder_section_and_no_monte_carlo_sections() {
         "## Workshop sheet: four-stage (multi-effect)",
         "![Workshop drawing: four-stage (multi-effect), millimetres](charts/sb-drawing-four-stage.svg)",
         "No variant is calibrated to a pilot still yet",
+        // Issue 5: the report says what the air sink does to the multi-effect stack (the
+        // result's sink note) and what happened inside the wick and multi-effect stills.
+        "### Inside the stills",
+        "**four-stage** (multi-effect)",
+        "gain output ratio",
+        "The last plate rejects",
+        "Heated air rises up the",
+        "The cloth was dry at some moment in",
     ] {
         assert!(md.contains(present), "missing {present}");
     }
