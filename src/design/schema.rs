@@ -807,21 +807,17 @@ impl Sink {
     }
 
     /// Nominal heat-transfer coefficient from the last plate to the sink, per m² of plate
-    /// [W m⁻² K⁻¹]. The water body's is the model's default; for air fins the model computes
-    /// the coefficient from the fin geometry instead
-    /// (`crate::stills::multi_effect::AirSink::coefficient`, which depends on the stack's tilt:
-    /// ≈ 3 level, ≈ 11–17 for the default fins at 15–30°, with the plate 10 K above 30 °C air), and this hand estimate is only a nominal figure for
-    /// summaries.
+    /// [W m⁻² K⁻¹]. The water body's is the model's default. An air sink without a set
+    /// coefficient is never run at this figure: the model computes it from the fins and the
+    /// stack's tilt (`crate::stills::multi_effect::AirSink::coefficient`: ≈ 3 level, fins or
+    /// not; ≈ 11–17 for the default fins tilted 15–30°, the plate 10 K above 30 °C air).
     ///
-    /// *Air fins, 25*: a well-finned plate (fins ≈ 50 mm deep at ≈ 10 mm pitch) in still
-    /// air. Hand estimate (from memory, Incropera et al., *Fundamentals of Heat and Mass
-    /// Transfer*, 6th ed., §9.7, Bar-Cohen & Rohsenow's parallel-plate channel relation
-    /// eq. 9.45): at the optimum spacing Nu_S ≈ 1.31, so h ≈ 1.31 × 0.027 / 0.010 ≈ 3.5 per m²
-    /// of fin; ≈ 10 m² of fin per m² of plate gives ≈ 35 per m² of plate for vertical fins,
-    /// plus ≈ 5 of radiation from the fin envelope. Fins hanging under a level plate do
-    /// worse (air must enter from the sides), so 25 sits inside a plausible 15–40. A plain
-    /// plate facing down is ≈ 2–3 by convection (Incropera eq. 9.32, Nu = 0.27 Ra^¼) plus
-    /// ≈ 5 of radiation: ≈ 8; set `sink_coefficient_w_m2_k` for such a sink.
+    /// *Air fins, 25*: a nominal figure for well-finned plates that vent freely (fins
+    /// ≈ 50 mm deep at ≈ 10 mm pitch on a vertical base, Bar-Cohen & Rohsenow's channel
+    /// relation, Incropera et al., 6th ed., eq. 9.45, from memory: Nu_S ≈ 1.31 at the optimum
+    /// spacing, h ≈ 3.5 per m² of fin, ≈ 10 m² of fin per m² of plate). Under a stack the
+    /// channels are as long as the slope and the buoyancy along them is g·sin β, so the
+    /// computed figure is usually well below this one.
     ///
     /// *Water body, 200*: the plate faces down into still water, the poorer orientation:
     /// Incropera eq. 9.32 with water at 300 K, a 0.25 m square plate (L = A/P = 0.0625 m) and
