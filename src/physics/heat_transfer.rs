@@ -646,10 +646,10 @@ pub fn stefan_diffusion_flux_kg_m2_s(
         dflux_dt_hot_kg_m2_s_k: 0.0,
         dflux_dt_cold_kg_m2_s_k: 0.0,
     };
-    let inputs_ok = [gap_m, p_total_pa, diffusivity_m2_s]
-        .iter()
-        .all(|x| x.is_finite() && *x > 0.0);
-    if !inputs_ok {
+    // Written out rather than over an array: this runs for every stage gap in every Newton
+    // iteration of a multi-effect still.
+    let positive = |x: f64| x > 0.0 && x < f64::INFINITY;
+    if !(positive(gap_m) && positive(p_total_pa) && positive(diffusivity_m2_s)) {
         return zero;
     }
     let cap = STEFAN_MAX_PRESSURE_FRACTION * p_total_pa;
