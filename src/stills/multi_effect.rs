@@ -279,14 +279,16 @@ impl AirSink {
     ///   Incropera eqs. 3.102–3.103, from memory). Replacing g by its component along the
     ///   channels is what Mehrtash & Tari (2013), *Appl. Therm. Eng.* 51:1067–1075, found to
     ///   hold for plate-fin sinks tilted from the vertical, facing down up to 60° from it
-    ///   (β ≥ 30°); nearer level it is extrapolated.
+    ///   (β ≥ 30°; their abstract gives −60° to +80°, and that −60° is the face-down side
+    ///   is our reading); nearer level it is extrapolated.
     /// * **Under a level plate**, driven by the buoyancy across it, g·cos β: the heated air
     ///   collects under the plate and spills over its edges ([`downward_plate_nusselt`] on
     ///   L = A/P of the plan). For fins this counts only the plan of the array, not the fin
     ///   surface: with the plate closing the channels' tops, the air between the fins must
     ///   leave sideways along them. Dayan et al. (2004), *Int. J. Heat Mass Transfer*
-    ///   47:2849–2860, measured such downward-facing arrays to do somewhat better than their
-    ///   base alone; that gain is not taken (conservative).
+    ///   47:2849–2860, measured and modelled such downward-facing arrays and size fin
+    ///   heights for the cooling they add (from their abstract; their correlation is not
+    ///   used here), so crediting the fins nothing errs on the safe side.
     ///
     /// So fins help in proportion to the tilt: level, they add almost nothing over a plain
     /// plate; tilted, a long channel chokes unless the spacing suits its length (see

@@ -256,7 +256,7 @@ fn a_floating_ten_stage_stack_matches_chiavazzo_et_al() {
     // The same level stack with the default finned air sink gives clearly less. Level, the
     // heated air cannot rise along the fins: it gathers under the plate and spills over the
     // edges (Incropera eq. 9.32, from memory), and the fins, closed at the top by the plate,
-    // are not credited (Dayan et al. 2004 measured a modest gain for such arrays; not
+    // are not credited (Dayan et al. 2004 found fins add cooling there; not
     // taken). The sink gets ≈ 3 W/m²K, cannot shed the ≈ 200 W/m² the stack passes down
     // without rising tens of kelvin, and the edges, frame, glazing and warm drains take
     // the heat instead (mechanism in `water_body_plain_plate_and_fins_compared`).
@@ -488,7 +488,7 @@ fn water_body_plain_plate_and_fins_compared() {
     //   tilted, ≈ 2–3 W/m²K, plus radiation at bare metal's emissivity 0.09 ≈ 0.6;
     // * the default fins (50 mm high, 20 mm apart, 1 mm thick, aluminium) running up the
     //   slope: level they are rated like the plain plate (the channels cannot vent; the
-    //   modest gain Dayan et al. 2004 measured for such arrays is not taken); tilted, each
+    //   cooling Dayan et al. 2004 found such arrays add is not taken); tilted, each
     //   channel by Bar-Cohen & Rohsenow with buoyancy g·sin β (Incropera eq. 9.45; the
     //   component of g along the channels is what Mehrtash & Tari 2013 found to hold down
     //   to 30° from level), on ≈ 4.8 m² of fin per m² of plate (all from memory).
@@ -643,7 +643,7 @@ mod air_sink {
         // Level, there is no buoyancy along the plate: plain plate and fins are both rated
         // as a hot plate facing down, Nu = 0.27 Ra^¼ on L = A/P (Incropera eq. 9.32, from
         // memory), ≈ 1–4 W/m²K (common practice, no source), the fins not credited
-        // (Dayan et al. 2004 measured a modest gain; not taken, conservative). Radiation at
+        // (Dayan et al. 2004 found such arrays add cooling; not taken, conservative). Radiation at
         // ε = 0.09 is ε·4σT³ ≈ 0.09 × 6.3 ≈ 0.6 W/m²K near 35 °C (the formula by hand).
         let plain = rated(&under_stack(0.0, 0.0));
         let finned = rated(&under_stack(0.0, 0.05));
@@ -666,7 +666,8 @@ mod air_sink {
     fn tilt_lets_the_fins_work() {
         // The buoyancy along the channels is g·sin β (Mehrtash & Tari 2013, Appl. Therm.
         // Eng. 51:1067–1075: the component of g along a plate-fin sink's channels holds for
-        // sinks facing down to 60° from the vertical, from memory), so the fins' coefficient
+        // sinks facing down to 60° from the vertical, from its abstract's −60°…+80° and our
+        // reading of which side is face-down), so the fins' coefficient
         // grows with the tilt (channels held at 0.5 m) and, from a few degrees on, the flow
         // up the slope governs.
         let h: Vec<f64> = (0..=12)
