@@ -24,7 +24,9 @@ use std::sync::atomic::{AtomicU64, Ordering};
 use super::evaluate::Skipped;
 use super::response::{VariantResponse, fit_responses};
 use super::sensitivity::{SensitivityReport, sensitivity_from};
-use crate::design::{DAYS_IN_MONTH, DesignErrors, DesignIssue, LoadedDesign, Variant, VariantKind};
+use crate::design::{
+    DAYS_IN_MONTH, DesignErrors, DesignIssue, LoadedDesign, Sink, Variant, VariantKind,
+};
 use crate::error::Error;
 use crate::stills::SiteWeather;
 
@@ -91,6 +93,9 @@ pub enum ParameterKind {
     InsulationConductivity,
     /// Solar absorptance of the absorbing surface (liner, absorber or wick cloth; an offset).
     Absorptance,
+    /// Free convection of a multi-effect still's computed air sink (a multiplier on
+    /// `sink_convection_factor`).
+    AirSinkConvection,
 }
 
 /// How a drawn value acts on the design.
@@ -115,7 +120,7 @@ pub enum Shape {
 
 impl ParameterKind {
     /// Every kind, in the order of the default parameter list.
-    pub const ALL: [ParameterKind; 7] = [
+    pub const ALL: [ParameterKind; 8] = [
         ParameterKind::CoverEmissivity,
         ParameterKind::CoverTransmittance,
         ParameterKind::CollectionEfficiency,
@@ -123,6 +128,7 @@ impl ParameterKind {
         ParameterKind::Wind,
         ParameterKind::InsulationConductivity,
         ParameterKind::Absorptance,
+        ParameterKind::AirSinkConvection,
     ];
 
     /// Short key.
@@ -135,6 +141,7 @@ impl ParameterKind {
             ParameterKind::Wind => "wind",
             ParameterKind::InsulationConductivity => "insulation-conductivity",
             ParameterKind::Absorptance => "absorptance",
+            ParameterKind::AirSinkConvection => "air-sink-convection",
         }
     }
 
@@ -147,17 +154,24 @@ impl ParameterKind {
             | ParameterKind::Absorptance => Effect::Offset,
             ParameterKind::CoverTransmittance
             | ParameterKind::Wind
-            | ParameterKind::InsulationConductivity => Effect::Multiplier,
+            | ParameterKind::InsulationConductivity
+            | ParameterKind::AirSinkConvection => Effect::Multiplier,
         }
     }
 
     /// Whether the parameter changes anything in `variant`: vapour leakage is not modelled
-    /// in the multi-effect still, and insulation quality needs at least one insulation layer;
-    /// every other parameter applies to every kind.
+    /// in the multi-effect still, insulation quality needs at least one insulation layer, and
+    /// the air-sink convection needs a multi-effect still whose air sink is computed (no
+    /// `sink_coefficient_w_m2_k` set); every other parameter applies to every kind.
     pub fn applies_to(self, variant: &Variant) -> bool {
         match self {
             ParameterKind::VapourLeakage => !matches!(variant.kind, VariantKind::MultiEffect(_)),
             ParameterKind::InsulationConductivity => !insulation_layers(variant).is_empty(),
+            ParameterKind::AirSinkConvection => matches!(
+                &variant.kind,
+                VariantKind::MultiEffect(k)
+                    if k.sink == Sink::AirFins && k.sink_coefficient_w_m2_k.is_none()
+            ),
             _ => true,
         }
     }
@@ -206,6 +220,13 @@ impl ParameterKind {
                 0.03,
                 "from memory: black paints and liners have solar absorptances of about \
                  0.90–0.97, lowered by fading and salt deposits",
+            ),
+            ParameterKind::AirSinkConvection => (
+                Shape::LogNormal,
+                0.3,
+                "common practice, no source: free-convection relations for fin arrays meet \
+                 tests within some tens of per cent where they were fitted, and a stack's sink \
+                 runs outside that (channels as long as the slope, shallow tilts)",
             ),
         };
         UncertainParameter {
@@ -387,6 +408,11 @@ pub fn perturbed(
                     if let Some(p) = item_mut(&mut design, id).and_then(|i| i.insulation.as_mut()) {
                         p.conductivity_w_m_k *= x.max(0.01);
                     }
+                }
+            }
+            ParameterKind::AirSinkConvection => {
+                if let VariantKind::MultiEffect(k) = &mut v.kind {
+                    k.sink_convection_factor = (k.sink_convection_factor * x).clamp(0.2, 5.0);
                 }
             }
             ParameterKind::Absorptance => {

@@ -849,6 +849,9 @@ fn default_fin_spacing() -> f64 {
 fn default_fin_thickness() -> f64 {
     1.0
 }
+fn default_sink_convection_factor() -> f64 {
+    1.0
+}
 
 /// A multi-effect diffusion still: glazing over an absorber, then a stack of stages.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -891,6 +894,11 @@ pub struct MultiEffect {
     /// material's.
     #[serde(default)]
     pub sink_emissivity: Option<f64>,
+    /// Air sink: multiplies the free convection the model computes from the fins [-],
+    /// [0.2, 5]; default 1. For a pilot's finding, or the uncertainty analysis's
+    /// `air-sink-convection` parameter; a computed air sink only.
+    #[serde(default = "default_sink_convection_factor")]
+    pub sink_convection_factor: f64,
     /// Feed per stage and m² of wick [L h⁻¹ m⁻²], [0, 20]; default 0.5.
     #[serde(default = "default_me_feed")]
     pub feed_l_h_m2: f64,

@@ -135,10 +135,15 @@ fn variant(w: &mut dyn Write, i: usize, v: &Variant) -> io::Result<()> {
             // An air sink without a set coefficient is modelled from its fins (free
             // convection and radiation, following the plate hour by hour), so its geometry is
             // what the design fixes; any other sink runs at its coefficient.
+            let factor = if (k.sink_convection_factor - 1.0).abs() > 1e-12 {
+                format!(", convection × {}", k.sink_convection_factor)
+            } else {
+                String::new()
+            };
             let sink = match (k.sink, k.sink_coefficient_w_m2_k) {
                 (Sink::AirFins, None) if k.fin_height_mm > 0.0 => format!(
                     "{} with fins {} mm high at {} mm spacing, {} mm thick (coefficient from \
-                     free convection and radiation, hour by hour)",
+                     free convection and radiation, hour by hour{factor})",
                     k.sink.name(),
                     k.fin_height_mm,
                     k.fin_spacing_mm,
@@ -146,7 +151,7 @@ fn variant(w: &mut dyn Write, i: usize, v: &Variant) -> io::Result<()> {
                 ),
                 (Sink::AirFins, None) => format!(
                     "{}, a plain plate without fins (coefficient from free convection and \
-                     radiation, hour by hour)",
+                     radiation, hour by hour{factor})",
                     k.sink.name()
                 ),
                 _ => format!("{} at {} W/m²K", k.sink.name(), k.sink_coefficient()),

@@ -912,6 +912,14 @@ pub(crate) fn variants(r: &mut Reader<'_>, vs: &[Variant], lib: Option<&Library>
                 );
                 range(
                     r,
+                    &format!("{p}.sink_convection_factor"),
+                    k.sink_convection_factor,
+                    B::In(0.2),
+                    B::In(5.0),
+                    "-",
+                );
+                range(
+                    r,
                     &format!("{p}.feed_l_h_m2"),
                     k.feed_l_h_m2,
                     B::In(0.0),

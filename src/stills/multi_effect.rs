@@ -230,6 +230,8 @@ pub struct AirSink {
     pub slope_length_m: f64,
     /// Tilt of the plate from level β \[rad\], [0, π/2).
     pub tilt_rad: f64,
+    /// Multiplies the free convection computed from the geometry [-] (1: as computed).
+    pub convection_factor: f64,
 }
 
 /// Which way an air sink sheds its heat (the larger of the two; see
@@ -338,6 +340,7 @@ impl AirSink {
         } else {
             (level, SinkFlow::UnderLevelPlate)
         };
+        let convective = convective * self.convection_factor;
         let (tp, ta) = (t_plate_k, t_air_k);
         let radiative =
             self.emissivity * STEFAN_BOLTZMANN_W_M2_K4 * (tp * tp + ta * ta) * (tp + ta);
@@ -625,6 +628,7 @@ impl MultiEffectStill {
                 plate_length_m: area / perimeter_m.max(1e-6),
                 slope_length_m: variant.width_m / tilt.cos(),
                 tilt_rad: tilt,
+                convection_factor: k.sink_convection_factor,
             }),
             _ => None,
         };
@@ -967,10 +971,15 @@ pub fn air_sink_basis(a: &AirSink, c: &AirSinkCoefficient) -> String {
     } else {
         "a plain plate facing down, no fins".to_owned()
     };
+    let factor = if (a.convection_factor - 1.0).abs() > 1e-12 {
+        format!(" (× {:.2} as the design sets)", a.convection_factor)
+    } else {
+        String::new()
+    };
     let mut text = format!(
-        "The air sink is {shape}: {:.1} W/m²K by free convection plus {:.1} by radiation \
-         (emissivity {:.2}) with the plate 10 K above 30 °C air; the coefficient follows the \
-         plate hour by hour.",
+        "The air sink is {shape}: {:.1} W/m²K by free convection{factor} plus {:.1} by \
+         radiation (emissivity {:.2}) with the plate 10 K above 30 °C air; the coefficient \
+         follows the plate hour by hour.",
         c.convective_w_m2_k, c.radiative_w_m2_k, a.emissivity
     );
     match c.flow {
