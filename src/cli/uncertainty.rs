@@ -30,10 +30,11 @@ pub enum Format {
     Each sample is one stochastic weather year of the site (daily clearness with the monthly\n  \
     means, a realistic spread and day-to-day persistence), one draw of every uncertain\n  \
     parameter (cover emissivity, cover transmittance/soiling, collection efficiency, vapour\n  \
-    leakage, wind, insulation quality, absorptance) and a model-form factor on yield (lognormal,\n  \
-    median 1, sigma of ln from the model's scatter against published devices; the output\n  \
-    names it). Yields come from a daily response model per\n  \
-    variant and month fitted to full simulations (about 22 average-day runs per variant); it\n  \
+    leakage, wind, insulation quality, absorptance, and the sink convection of an air-cooled\n  \
+    multi-effect stack) and a model-form factor on yield (lognormal, median 1, sigma of ln\n  \
+    from the model's scatter against published devices; the output names it). Yields come\n  \
+    from a daily response model per variant and month fitted to full simulations (about 22\n  \
+    average-day runs per variant; 24 for an air-cooled stack); it\n  \
     reproduces hour-by-hour simulations of held-back years within 3 % on monthly means\n  \
     (docs/compare.md). The same seed gives the same figures on any number of threads.\n  \
     Sensitivity: annual yield at each parameter's P10 and P90 with the others nominal,\n  \
