@@ -30,8 +30,9 @@
 //! the plate add almost nothing. ≈ 3 W m⁻² K⁻¹ level, fins or not; ≈ 17 for the default
 //! fins under a 0.25 m stack tilted 30° and ≈ 11 under the demo's 0.5 m stack at 15°. The
 //! stack does not ride up rigidly: a diffusion gap passes latent heat in proportion to the
-//! slope of the saturation pressure, which roughly doubles every 12 K, so the coldest stages hold most of the stack's resistance, and the absorber rises by
-//! a fraction of the last plate's rise. For the steady Chiavazzo-like stack: level, any air
+//! slope of the saturation pressure, which roughly doubles every 12 K, so the coldest stages
+//! hold most of the stack's resistance, and the absorber rises by a fraction of the last
+//! plate's rise. For the steady Chiavazzo-like stack: level, any air
 //! sink lets the last plate rise ≈ 22 K and the edge, frame, glazing and warm-drain losses
 //! take ≈ 20 % of the distillate; tilted 30°, fins rise ≈ 12 K and cost ≈ 6 % (a plain plate
 //! still ≈ 19 %). The tilt, not the fins alone, makes an air sink work. The run's figures go
@@ -76,7 +77,7 @@ const DIFFUSIVITY_REFERENCE_FACTOR: f64 = 165_333.509_083_298_27;
 /// T^2.072, the temperature factor of Marrero & Mason's vapour diffusivity
 /// ([`DIFFUSIVITY_TEMPERATURE_EXPONENT`]), evaluated without a general power: the solver
 /// calls it for every stage gap in every Newton iteration, where `powf` (a logarithm and an
-/// exponential) was a tenth of a 10-stage step.
+/// exponential) took about a twentieth of a 10-stage step's instructions.
 ///
 /// With x = T/T₀ (T₀ = 330 K): T^2.072 = T₀^2.072 · x² · exp(0.072 ln x), where
 /// ln x = 2 atanh s, s = (x − 1)/(x + 1), by its odd series to s¹¹ (Abramowitz & Stegun
