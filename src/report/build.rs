@@ -677,9 +677,8 @@ fn kind_findings(details: &stills::KindDetails) -> Vec<String> {
             let worst_dry = stage_dry_hour_fraction.iter().copied().fold(0.0, f64::max);
             if worst_dry > 0.0 {
                 lines.push(format!(
-                    "The feed held a stage's evaporation in up to {:.0} % of the hours \
-                     (its wick partly dry); more feed per stage would lift the yield a little \
-                     and keep salt from building up in the cloth.",
+                    "The feed held a stage's evaporation in up to {:.0} % of the hours: its \
+                     wick was partly dry then, where salt can build up in the cloth.",
                     100.0 * worst_dry
                 ));
             }
