@@ -798,3 +798,42 @@ fn operation_section(
         profile,
     })
 }
+
+#[cfg(test)]
+mod tests {
+    use super::kind_findings;
+    use crate::stills::KindDetails;
+
+    #[test]
+    fn kind_findings_name_dry_stages_and_heat_reuse_only_when_they_happen() {
+        // Figures invented for the wording only (no physics is checked here).
+        let me = |dry: f64, eff: f64| KindDetails::MultiEffect {
+            stages: 2,
+            gap_mm: 4.0,
+            sink: "air-fins".into(),
+            sink_coefficient_w_m2_k: 12.0,
+            edge_ua_per_node_w_k: 0.1,
+            stage_max_c: vec![70.0, 60.0],
+            stage_l_m2_day: vec![3.0, 2.5],
+            stage_dry_hour_fraction: vec![dry, 0.0],
+            solar_to_vapour_efficiency: eff,
+            gain_output_ratio: 1.6,
+            first_stage_heat_kwh_m2_day: 3.0,
+            glazing_gap_mm: 20.0,
+            sink_heat_kwh_m2_day: 1.5,
+            sink_rise_day_mean_k: 5.0,
+            absorber_max_c: 75.0,
+            last_plate_max_c: 50.0,
+            sink_note: "the sink note".into(),
+        };
+        let dry = kind_findings(&me(0.12, 1.1));
+        assert_eq!(dry.len(), 4, "{dry:?}");
+        assert!(dry[0].contains("gain output ratio 1.60") && dry[0].contains("above 100 %"));
+        assert!(dry[1].contains("3.00, 2.50 L/m²/day") && dry[1].contains("70.0, 60.0 °C"));
+        assert!(dry[2].contains("up to 12 % of the hours"), "{}", dry[2]);
+        assert_eq!(dry[3], "the sink note");
+        let wet = kind_findings(&me(0.0, 0.6));
+        assert_eq!(wet.len(), 3, "{wet:?}");
+        assert!(!wet[0].contains("above 100 %"));
+    }
+}
