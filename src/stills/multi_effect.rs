@@ -640,7 +640,7 @@ impl MultiEffectStill {
                     SINK_RATING_AIR_K,
                     pressure_pa,
                 );
-                (c.total_w_m2_k(), air_sink_basis(a, &c))
+                (c.total_w_m2_k(), air_sink_basis(a, &c, pressure_pa))
             }
             None => (k.sink_coefficient(), String::new()),
         };
@@ -958,8 +958,8 @@ impl StillModel for MultiEffectStill {
 
 /// The sentences that say how an air sink was rated and what governs it, for the result's
 /// sink note. `c` is the coefficient at the rating point ([`SINK_RATING_AIR_K`],
-/// [`SINK_RATING_DIFFERENCE_K`]).
-pub fn air_sink_basis(a: &AirSink, c: &AirSinkCoefficient) -> String {
+/// [`SINK_RATING_DIFFERENCE_K`]) and site pressure `pressure_pa` \[Pa\].
+pub fn air_sink_basis(a: &AirSink, c: &AirSinkCoefficient, pressure_pa: f64) -> String {
     let tilt_deg = a.tilt_rad.to_degrees();
     let finned = a.fin_height_m > 0.0;
     let shape = if finned {
@@ -1015,6 +1015,26 @@ pub fn air_sink_basis(a: &AirSink, c: &AirSinkCoefficient) -> String {
              inclined plate, Incropera eq. 9.24 with buoyancy g·sin β).",
             a.slope_length_m
         )),
+    }
+    // What tilting helps, where the relation is trusted (30°, the face-down limit of
+    // Mehrtash & Tari's range): the same sink under the same footprint width.
+    let trusted = 30f64.to_radians();
+    if a.tilt_rad < trusted - 1e-9 {
+        let steeper = AirSink {
+            tilt_rad: trusted,
+            slope_length_m: a.slope_length_m * a.tilt_rad.cos() / trusted.cos(),
+            ..*a
+        };
+        let h30 = steeper.coefficient(
+            SINK_RATING_AIR_K + SINK_RATING_DIFFERENCE_K,
+            SINK_RATING_AIR_K,
+            pressure_pa,
+        );
+        text.push_str(&format!(
+            " Tilted 30° over the same width, the same sink would rate {:.1} W/m²K of \
+             convection.",
+            h30.convective_w_m2_k
+        ));
     }
     if let (true, Some(best)) = (finned, c.best_spacing_m) {
         let (now, best_mm) = (a.fin_spacing_m * 1000.0, best * 1000.0);
