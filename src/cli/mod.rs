@@ -10,6 +10,7 @@ mod check;
 mod climate;
 mod compare;
 mod cost;
+mod demand;
 mod operate;
 mod report;
 mod simulate;

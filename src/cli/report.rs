@@ -6,8 +6,9 @@ use std::path::PathBuf;
 
 use stillbench::compare::size::{DEFAULT_CONFIDENCE, DEFAULT_YEARS};
 use stillbench::compare::uncertainty::DEFAULT_SAMPLES;
-use stillbench::design::DRINKING_L_PER_PERSON_DAY;
-use stillbench::report::{self, DemandChoice, ReportOptions, SheetChoice, Templates};
+use stillbench::report::{self, ReportOptions, SheetChoice, Templates};
+
+use super::demand::DemandArgs;
 
 /// Arguments of `report`.
 #[derive(Debug, clap::Args)]
@@ -59,20 +60,9 @@ pub struct ReportArgs {
     /// recommended variant's.
     #[arg(long, value_name = "NAME")]
     pub sheet: Vec<String>,
-    /// People served (instead of the design's demand).
-    #[arg(long, value_name = "N", conflicts_with = "demand")]
-    pub people: Option<u32>,
-    /// Litres per person and day with --people; default 3 (drinking only).
-    #[arg(
-        long,
-        value_name = "L",
-        allow_negative_numbers = true,
-        requires = "people"
-    )]
-    pub litres_per_person: Option<f64>,
-    /// Daily demand [L/day] (instead of the design's demand).
-    #[arg(long, value_name = "L_PER_DAY", allow_negative_numbers = true)]
-    pub demand: Option<f64>,
+    /// The demand to size for (instead of the design's `[project.demand]`).
+    #[command(flatten)]
+    pub need: DemandArgs,
 }
 
 /// Run `report`.
@@ -90,28 +80,13 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<()> {
         }
         .into());
     }
-    let demand = match (args.people, args.demand) {
-        (Some(people), _) => DemandChoice::People {
-            people,
-            l_per_person_day: args.litres_per_person.unwrap_or(DRINKING_L_PER_PERSON_DAY),
-        },
-        (None, Some(d)) => DemandChoice::Total(d),
-        (None, None) => DemandChoice::FromDesign,
-    };
+    let demand = args.need.choice();
     let mut command = String::from("stillbench report");
     if let Some(d) = &args.design {
         command.push_str(&format!(" {}", d.display()));
     }
     command.push_str(&format!(" --seed {}", args.seed));
-    if let Some(p) = args.people {
-        command.push_str(&format!(" --people {p}"));
-        if let Some(l) = args.litres_per_person {
-            command.push_str(&format!(" --litres-per-person {l}"));
-        }
-    }
-    if let Some(d) = args.demand {
-        command.push_str(&format!(" --demand {d}"));
-    }
+    command.push_str(&args.need.command_args());
     command.push_str(&format!(
         " --samples {} --years {} --confidence {}",
         args.samples, args.years, args.confidence

@@ -13,6 +13,8 @@ use stillbench::compare::size::{
     DRINKING_L_PER_PERSON_DAY, SizeMethod, SizeOptions, SizeReport,
 };
 use stillbench::design::{DesignErrors, DesignIssue};
+
+use super::demand::DemandArgs;
 use stillbench::stills;
 
 /// Output formats.
@@ -47,25 +49,9 @@ pub enum Format {
 pub struct SizeArgs {
     /// The design file (TOML). Without it, the built-in demo design.
     pub design: Option<PathBuf>,
-    /// Daily demand [L/day]. Without it or --people, the design's `[project.demand]`.
-    #[arg(
-        long,
-        value_name = "L_PER_DAY",
-        allow_negative_numbers = true,
-        conflicts_with = "people"
-    )]
-    pub demand: Option<f64>,
-    /// People served; the demand is people × --litres-per-person.
-    #[arg(long, value_name = "N")]
-    pub people: Option<u32>,
-    /// Litres per person and day with --people; default 3 (drinking only).
-    #[arg(
-        long,
-        value_name = "L",
-        allow_negative_numbers = true,
-        requires = "people"
-    )]
-    pub litres_per_person: Option<f64>,
+    /// The demand to size for.
+    #[command(flatten)]
+    pub need: DemandArgs,
     /// Fraction of years in which the demand must be met, strictly between 0 and 1.
     #[arg(long, default_value_t = DEFAULT_CONFIDENCE, allow_negative_numbers = true)]
     pub confidence: f64,
@@ -100,10 +86,11 @@ fn resolve_demand(
     loaded: &stillbench::design::LoadedDesign,
 ) -> anyhow::Result<(f64, String)> {
     let file = &loaded.source;
-    if let Some(d) = args.demand {
+    let need = &args.need;
+    if let Some(d) = need.demand {
         return Ok((d, format!("{d} L/day (--demand)")));
     }
-    if let Some(p) = args.people {
+    if let Some(p) = need.people {
         if p == 0 {
             return Err(bad_option(
                 file,
@@ -111,7 +98,7 @@ fn resolve_demand(
                 "at least one person is needed".into(),
             ));
         }
-        let per = args.litres_per_person.unwrap_or(DRINKING_L_PER_PERSON_DAY);
+        let per = need.litres_per_person.unwrap_or(DRINKING_L_PER_PERSON_DAY);
         if !(per.is_finite() && per > 0.0) {
             return Err(bad_option(
                 file,

@@ -2,6 +2,7 @@
 //! files). Each chart is a standalone SVG string with a `<title>` and an ARIA label, so it can
 //! be written beside `report.md` and inlined in `report.html`.
 
+use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 
 use super::context::{ReportContext, SensitivitySection};
@@ -39,6 +40,35 @@ fn err<E: std::fmt::Display>(e: E) -> String {
 
 fn colour(i: usize) -> RGBColor {
     PALETTE[i % PALETTE.len()]
+}
+
+/// A chart area with linear axes on the SVG backend (every chart here).
+type Plot<'a, 'b> = ChartContext<'a, SVGBackend<'b>, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
+
+/// A line with a dot at each point, named in the legend by a short stroke.
+fn marked_line(
+    c: &mut Plot,
+    pts: Vec<(f64, f64)>,
+    col: RGBColor,
+    label: String,
+) -> Result<(), String> {
+    c.draw_series(LineSeries::new(pts.clone(), col.stroke_width(2)))
+        .map_err(err)?
+        .label(label)
+        .legend(move |(x, y)| PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(2)));
+    c.draw_series(pts.iter().map(|&p| Circle::new(p, 3, col.filled())))
+        .map_err(err)?;
+    Ok(())
+}
+
+/// The legend box every chart uses, at `position`.
+fn legend<'b>(c: &mut Plot<'b, 'b>, position: SeriesLabelPosition) -> Result<(), String> {
+    c.configure_series_labels()
+        .background_style(WHITE.mix(0.9))
+        .border_style(BLACK.mix(0.4))
+        .position(position)
+        .draw()
+        .map_err(err)
 }
 
 /// Largest finite value of `xs` (at least `floor`), padded by 10 %.
@@ -165,21 +195,9 @@ pub fn climate_chart(ctx: &ReportContext) -> Result<Chart, String> {
                     .iter()
                     .filter_map(|m| pick(m).map(|t| (f64::from(m.month), t)))
                     .collect();
-                c.draw_series(LineSeries::new(pts.clone(), col.stroke_width(2)))
-                    .map_err(err)?
-                    .label(label)
-                    .legend(move |(x, y)| {
-                        PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(2))
-                    });
-                c.draw_series(pts.iter().map(|&p| Circle::new(p, 3, col.filled())))
-                    .map_err(err)?;
+                marked_line(&mut c, pts, col, label.to_owned())?;
             }
-            c.configure_series_labels()
-                .background_style(WHITE.mix(0.9))
-                .border_style(BLACK.mix(0.4))
-                .position(SeriesLabelPosition::LowerRight)
-                .draw()
-                .map_err(err)?;
+            legend(&mut c, SeriesLabelPosition::LowerRight)?;
         }
         if has_rain && let Some(area) = it.next() {
             let ymax = top(months.iter().filter_map(|m| m.rain_mm), 1.0);
@@ -241,21 +259,9 @@ pub fn monthly_yield_chart(ctx: &ReportContext) -> Result<Chart, String> {
                 .enumerate()
                 .map(|(k, y)| (k as f64 + 1.0, *y))
                 .collect();
-            c.draw_series(LineSeries::new(pts.clone(), col.stroke_width(2)))
-                .map_err(err)?
-                .label(format!("{} ({})", m.name, m.kind))
-                .legend(move |(x, y)| {
-                    PathElement::new(vec![(x, y), (x + 18, y)], col.stroke_width(2))
-                });
-            c.draw_series(pts.iter().map(|&p| Circle::new(p, 3, col.filled())))
-                .map_err(err)?;
+            marked_line(&mut c, pts, col, format!("{} ({})", m.name, m.kind))?;
         }
-        c.configure_series_labels()
-            .background_style(WHITE.mix(0.9))
-            .border_style(BLACK.mix(0.4))
-            .position(SeriesLabelPosition::UpperRight)
-            .draw()
-            .map_err(err)?;
+        legend(&mut c, SeriesLabelPosition::UpperRight)?;
         root.present().map_err(err)?;
     }
     Ok(finish("monthly_yield", &title, svg))
@@ -317,12 +323,7 @@ pub fn pareto_chart(ctx: &ReportContext) -> Result<Chart, String> {
                     Circle::new((lx + 6, ly), 5, s)
                 });
         }
-        c.configure_series_labels()
-            .background_style(WHITE.mix(0.9))
-            .border_style(BLACK.mix(0.4))
-            .position(SeriesLabelPosition::UpperLeft)
-            .draw()
-            .map_err(err)?;
+        legend(&mut c, SeriesLabelPosition::UpperLeft)?;
         root.present().map_err(err)?;
     }
     Ok(finish("pareto", &title, svg))

@@ -143,6 +143,11 @@ impl Sheet {
         let _ = writeln!(self.body, r#"<path class="{class}" d="{}"/>"#, d.trim_end());
     }
 
+    /// The "Side section" heading, at height `y_mm` under the section's origin.
+    fn side_section_heading(&mut self, v: View, y_mm: f64) {
+        self.text(v, (0.0, y_mm), Anchor::Start, "head", "Side section");
+    }
+
     fn text(&mut self, v: View, p: (f64, f64), anchor: Anchor, class: &str, s: &str) {
         let q = v.at(p);
         let w = s.chars().count() as f64 * 0.55 * self.fs;
@@ -388,13 +393,7 @@ pub fn drawing(v: &Variant, lib: &Library) -> Drawing {
             basin_section(&mut s, sec, w, floor, ins, k.basin, k.brine_depth_mm);
             single_cover_walls(&mut s, sec, w, hf, hb, 0.0, tilt);
             s.dim_h(sec, 0.0, w, -(floor + ins) - 2.5 * fs, "width", w);
-            s.text(
-                sec,
-                (0.0, -(floor + ins) - 5.0 * fs),
-                Anchor::Start,
-                "head",
-                "Side section",
-            );
+            s.side_section_heading(sec, -(floor + ins) - 5.0 * fs);
         }
         VariantKind::DoubleSlope(k) => {
             let hs = k.side_wall_mm;
@@ -433,13 +432,7 @@ pub fn drawing(v: &Variant, lib: &Library) -> Drawing {
                 hr,
             );
             s.dim_h(sec, 0.0, w, -(floor + ins) - 2.5 * fs, "width", w);
-            s.text(
-                sec,
-                (0.0, -(floor + ins) - 5.0 * fs),
-                Anchor::Start,
-                "head",
-                "Side section",
-            );
+            s.side_section_heading(sec, -(floor + ins) - 5.0 * fs);
         }
         VariantKind::Wick(k) => {
             let (sin, cos) = tilt.to_radians().sin_cos();
@@ -498,13 +491,7 @@ pub fn drawing(v: &Variant, lib: &Library) -> Drawing {
                 rise,
             );
             s.dim_h(sec, 0.0, w, -ins - 2.5 * fs, "width in plan", w);
-            s.text(
-                sec,
-                (0.0, -ins - 5.0 * fs),
-                Anchor::Start,
-                "head",
-                "Side section",
-            );
+            s.side_section_heading(sec, -ins - 5.0 * fs);
         }
         VariantKind::Stepped(k) => {
             let n = k.trays.max(1);
@@ -569,13 +556,7 @@ pub fn drawing(v: &Variant, lib: &Library) -> Drawing {
                 false,
             );
             s.dim_h(sec, 0.0, w, -ins - 2.5 * fs, "width", w);
-            s.text(
-                sec,
-                (0.0, -ins - 7.0 * fs),
-                Anchor::Start,
-                "head",
-                "Side section",
-            );
+            s.side_section_heading(sec, -ins - 7.0 * fs);
         }
         VariantKind::MultiEffect(k) => {
             multi_effect(&mut s, sec, k, lib, w, tilt);
@@ -886,7 +867,7 @@ fn multi_effect(
     let g1 = at(span, 0.0);
     s.angle(sec, g1, 180.0, 180.0 + tilt, w * 0.3, "glazing tilt", tilt);
     s.dim_h(sec, 0.0, w, -2.5 * fs, "width in plan", w);
-    s.text(sec, (0.0, -5.0 * fs), Anchor::Start, "head", "Side section");
+    s.side_section_heading(sec, -5.0 * fs);
 
     // Detail of the stack, enlarged so the gaps can be read.
     let scale = (w * 0.5 / stack).floor().clamp(1.0, 50.0);
