@@ -137,6 +137,19 @@ impl MonthlyMeans {
         }
     }
 
+    /// The air of month `m`'s (0-based) average day, the same every day of the month (the
+    /// next morning's minimum is this month's).
+    pub(crate) fn average_day_air(&self, m: usize) -> DayAir {
+        DayAir {
+            t_min_c: self.t_min_c[m],
+            t_max_c: self.t_max_c[m],
+            t_min_next_c: self.t_min_c[m],
+            t_dew_c: self.dew_point_c(m),
+            wind_m_s: self.wind_m_s[m],
+            wind_height_m: self.wind_height_m,
+        }
+    }
+
     /// Dew point [°C] of month `m` (0-based) for a day with these extremes.
     pub(crate) fn dew_point_c(&self, m: usize) -> f64 {
         let (tx, tn) = (self.t_max_c[m], self.t_min_c[m]);
@@ -257,15 +270,7 @@ pub fn average_days(
                 "irradiation given for a month of polar night".to_string(),
             ));
         }
-        let air = DayAir {
-            t_min_c: means.t_min_c[m],
-            t_max_c: means.t_max_c[m],
-            t_min_next_c: means.t_min_c[m],
-            t_dew_c: means.dew_point_c(m),
-            wind_m_s: means.wind_m_s[m],
-            wind_height_m: means.wind_height_m,
-        };
-        push_synthetic_day(day, month, h, hd, &air, &mut hours);
+        push_synthetic_day(day, month, h, hd, &means.average_day_air(m), &mut hours);
     }
     Ok(WeatherSeries {
         hours,

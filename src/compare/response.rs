@@ -34,7 +34,7 @@ use std::sync::atomic::{AtomicU64, Ordering};
 use super::evaluate::Skipped;
 use super::size::{unit_years, weather_model};
 use super::uncertainty::{ParameterKind, Progress, UncertainParameter, perturbed};
-use crate::climate::monthly::{DayAir, push_synthetic_day};
+use crate::climate::monthly::push_synthetic_day;
 use crate::climate::stochastic::{StochasticModel, erbs_daily_diffuse_fraction};
 use crate::climate::{ClimateSource, SunTable, WeatherSeries, WeatherSource, month_of_day};
 use crate::design::{DAYS_IN_MONTH, LoadedDesign};
@@ -233,15 +233,7 @@ pub fn level_weather(
         let kt = model.distribution(month).quantile(p);
         let h = kt * day.h0_j_m2;
         let hd = h * erbs_daily_diffuse_fraction(kt, day.sunset_hour_angle_rad);
-        let air = DayAir {
-            t_min_c: means.t_min_c[m],
-            t_max_c: means.t_max_c[m],
-            t_min_next_c: means.t_min_c[m],
-            t_dew_c: means.dew_point_c(m),
-            wind_m_s: means.wind_m_s[m],
-            wind_height_m: means.wind_height_m,
-        };
-        push_synthetic_day(day, month, h, hd, &air, &mut hours);
+        push_synthetic_day(day, month, h, hd, &means.average_day_air(m), &mut hours);
     }
     Ok(SiteWeather {
         series: WeatherSeries {

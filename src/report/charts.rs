@@ -61,8 +61,31 @@ fn marked_line(
     Ok(())
 }
 
+/// One panel of the climate chart: months 1–12 across, `y` up, labelled `y_desc`.
+fn month_panel<'a, 'b>(
+    area: &'a DrawingArea<SVGBackend<'b>, plotters::coord::Shift>,
+    y: std::ops::Range<f64>,
+    y_desc: &str,
+) -> Result<Plot<'a, 'b>, String> {
+    let mut c = ChartBuilder::on(area)
+        .margin(8)
+        .x_label_area_size(32)
+        .y_label_area_size(60)
+        .build_cartesian_2d(0.5f64..12.5f64, y)
+        .map_err(err)?;
+    c.configure_mesh()
+        .x_labels(12)
+        .x_label_formatter(&month_label)
+        .x_desc("month")
+        .y_desc(y_desc)
+        .light_line_style(WHITE)
+        .draw()
+        .map_err(err)?;
+    Ok(c)
+}
+
 /// The legend box every chart uses, at `position`.
-fn legend<'b>(c: &mut Plot<'b, 'b>, position: SeriesLabelPosition) -> Result<(), String> {
+fn legend<'a, 'b: 'a>(c: &mut Plot<'a, 'b>, position: SeriesLabelPosition) -> Result<(), String> {
     c.configure_series_labels()
         .background_style(WHITE.mix(0.9))
         .border_style(BLACK.mix(0.4))
@@ -131,20 +154,7 @@ pub fn climate_chart(ctx: &ReportContext) -> Result<Chart, String> {
         let mut it = areas.iter();
         if let Some(area) = it.next() {
             let ymax = top(months.iter().map(|m| m.ghi_kwh_m2_day), 1.0);
-            let mut c = ChartBuilder::on(area)
-                .margin(8)
-                .x_label_area_size(32)
-                .y_label_area_size(60)
-                .build_cartesian_2d(0.5f64..12.5f64, 0f64..ymax)
-                .map_err(err)?;
-            c.configure_mesh()
-                .x_labels(12)
-                .x_label_formatter(&month_label)
-                .x_desc("month")
-                .y_desc("irradiation [kWh/m²/day]")
-                .light_line_style(WHITE)
-                .draw()
-                .map_err(err)?;
+            let mut c = month_panel(area, 0f64..ymax, "irradiation [kWh/m²/day]")?;
             let pts: Vec<(f64, f64)> = months
                 .iter()
                 .map(|m| (f64::from(m.month), m.ghi_kwh_m2_day))
@@ -164,20 +174,7 @@ pub fn climate_chart(ctx: &ReportContext) -> Result<Chart, String> {
                 .filter_map(|m| m.t_min_c)
                 .fold(f64::INFINITY, f64::min)
                 .min(0.0);
-            let mut c = ChartBuilder::on(area)
-                .margin(8)
-                .x_label_area_size(32)
-                .y_label_area_size(60)
-                .build_cartesian_2d(0.5f64..12.5f64, tmin..tmax)
-                .map_err(err)?;
-            c.configure_mesh()
-                .x_labels(12)
-                .x_label_formatter(&month_label)
-                .x_desc("month")
-                .y_desc("air temperature [°C]")
-                .light_line_style(WHITE)
-                .draw()
-                .map_err(err)?;
+            let mut c = month_panel(area, tmin..tmax, "air temperature [°C]")?;
             for (i, (label, pick)) in [
                 (
                     "mean daily maximum",
@@ -201,20 +198,7 @@ pub fn climate_chart(ctx: &ReportContext) -> Result<Chart, String> {
         }
         if has_rain && let Some(area) = it.next() {
             let ymax = top(months.iter().filter_map(|m| m.rain_mm), 1.0);
-            let mut c = ChartBuilder::on(area)
-                .margin(8)
-                .x_label_area_size(32)
-                .y_label_area_size(60)
-                .build_cartesian_2d(0.5f64..12.5f64, 0f64..ymax)
-                .map_err(err)?;
-            c.configure_mesh()
-                .x_labels(12)
-                .x_label_formatter(&month_label)
-                .x_desc("month")
-                .y_desc("rainfall [mm/month]")
-                .light_line_style(WHITE)
-                .draw()
-                .map_err(err)?;
+            let mut c = month_panel(area, 0f64..ymax, "rainfall [mm/month]")?;
             c.draw_series(months.iter().filter_map(|m| {
                 let x = f64::from(m.month);
                 m.rain_mm
