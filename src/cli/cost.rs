@@ -279,10 +279,28 @@ pub fn write_text(
             rep.part, rep.item, rep.lifetime_years, rep.count, rep.cost_each, rep.present_worth
         )?;
     }
+    let op = &c.operator;
     writeln!(
         out,
-        "  operator {:.0} h/year; upkeep {:.2}/year; salvage {:.2}",
-        c.operator_h_per_year, c.upkeep_per_year, c.salvage
+        "  operator: {:.1} h/day for the installation ({}): a {:.0} min round + {:.1} min \
+         per unit ({}); this unit's share {:.0} h/year = {:.2}/year",
+        op.installation_h_per_day,
+        op.units_basis,
+        op.round_min_per_day,
+        op.unit_min_per_day,
+        op.unit_tasks
+            .iter()
+            .map(|t| format!("{} {:.2}", t.task, t.min_per_day))
+            .collect::<Vec<_>>()
+            .join("; "),
+        c.operator_h_per_year,
+        c.operator_cost_per_year
+    )?;
+    writeln!(
+        out,
+        "  upkeep (spares, repairs) {:.2}/year; running (upkeep + operator) {:.2}/year; \
+         salvage {:.2}",
+        c.upkeep_per_year, c.running_per_year, c.salvage
     )?;
     writeln!(
         out,

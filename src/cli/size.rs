@@ -193,7 +193,7 @@ pub fn write_text(
     )?;
     writeln!(
         out,
-        "{:<20} {:>6} {:>10} {:>12} {:>6} {:>12} {:>6} {:>8} {:>9} {:>10} {:>10} {:>8}",
+        "{:<20} {:>6} {:>10} {:>12} {:>6} {:>12} {:>6} {:>8} {:>9} {:>10} {:>10} {:>8} {:>8}",
         "variant",
         "units",
         "area m²",
@@ -205,12 +205,13 @@ pub fn write_text(
         "pitch m",
         "land m²",
         "storage L",
-        "low days"
+        "low days",
+        "op h/day"
     )?;
     for s in &rep.sized {
         writeln!(
             out,
-            "{:<20} {:>6} {:>10.1} {:>12.0} {:>6} {:>12.1} {:>6.0} {:>7.1}° {:>9.2} {:>10.1} {:>10.0} {:>8}",
+            "{:<20} {:>6} {:>10.1} {:>12.0} {:>6} {:>12.1} {:>6.0} {:>7.1}° {:>9.2} {:>10.1} {:>10.0} {:>8} {:>8.1}",
             s.name,
             s.units,
             s.footprint_m2,
@@ -222,7 +223,8 @@ pub fn write_text(
             s.row_pitch_m,
             s.land_m2,
             s.storage_l,
-            s.longest_low_run_days
+            s.longest_low_run_days,
+            s.operator_h_per_day
         )?;
     }
     let with_rain: Vec<_> = rep.sized.iter().filter(|s| !s.rain.is_empty()).collect();
@@ -252,7 +254,9 @@ pub fn write_text(
          meets;\nsun noon: sun elevation at noon on the worst month's average day; pitch: plan \
          depth + the\nnoon shadow of the row's top edge; land: units × length × pitch; storage: \
          the tank that\ncarries the deficit of low-output days (array output below the demand), \
-         at the confidence;\nlow days: the longest run of low-output days, at the confidence."
+         at the confidence;\nlow days: the longest run of low-output days, at the confidence;\nop h/day: \
+         the operator's time a day for the array (a daily round plus each unit's tasks, \
+         [costs.operator])."
     )?;
     if !rep.skipped.is_empty() {
         writeln!(out, "\nNot sized:")?;
@@ -277,13 +281,13 @@ pub fn write_csv(out: &mut impl Write, rep: &SizeReport) -> std::io::Result<()> 
         out,
         "variant,kind,demand_l_day,confidence,years,seed,units,footprint_m2,capital,currency,\
          worst_month,array_worst_month_l_day,met_fraction,noon_elevation_deg,row_height_m,\
-         row_gap_m,row_pitch_m,land_m2,storage_l,longest_low_run_days"
+         row_gap_m,row_pitch_m,land_m2,storage_l,longest_low_run_days,operator_h_per_day"
     )?;
     let o = &rep.options;
     for s in &rep.sized {
         writeln!(
             out,
-            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
+            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
             csv_field(&s.name),
             csv_field(&s.kind),
             o.demand_l_day,
@@ -303,7 +307,8 @@ pub fn write_csv(out: &mut impl Write, rep: &SizeReport) -> std::io::Result<()> 
             s.row_pitch_m,
             s.land_m2,
             s.storage_l,
-            s.longest_low_run_days
+            s.longest_low_run_days,
+            s.operator_h_per_day
         )?;
     }
     Ok(())

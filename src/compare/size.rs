@@ -8,6 +8,8 @@
 //!   ⌈confidence · years⌉-th smallest of those (so at least the confidence fraction of the
 //!   simulated years are met — an empirical quantile, [`order_statistic_index`]);
 //! * **capital** — units × the variant's capital ([`crate::economics::cost_variant`]);
+//! * **operator time** — the daily round plus units × each unit's tasks
+//!   ([`crate::economics::operator`]);
 //! * **land** — rows facing the equator, spaced so that no row shades the next at solar noon
 //!   on the average day of the worst month ([`row_gap_m`]); land = units × length × row pitch;
 //! * **storage** — a *low-output day* is a day when the sized array makes less than the
@@ -163,11 +165,7 @@ impl UnitYear {
 /// Whole units of output `unit_l_day` [L day⁻¹] needed for `demand_l_day` [L day⁻¹]:
 /// ⌈demand ÷ unit⌉, or `None` when a unit makes nothing (or the count exceeds 10⁹).
 pub fn units_for(demand_l_day: f64, unit_l_day: f64) -> Option<u64> {
-    if !(unit_l_day > 0.0 && unit_l_day.is_finite() && demand_l_day.is_finite()) {
-        return None;
-    }
-    let n = (demand_l_day / unit_l_day).ceil().max(1.0);
-    (n <= 1e9).then_some(n as u64)
+    economics::operator::units_for_demand(demand_l_day, unit_l_day)
 }
 
 /// Index (0-based, into the ascending sort of `n` values) of the empirical quantile that at
@@ -448,6 +446,9 @@ pub struct VariantSize {
     pub longest_low_run_days: u32,
     /// Rain the covers would catch, per month (empty when the site gives no rainfall).
     pub rain: Vec<RainMonth>,
+    /// The operator's time to run the sized array [h day⁻¹]: the daily round plus units ×
+    /// each unit's tasks ([`economics::operator`]).
+    pub operator_h_per_day: f64,
 }
 
 /// The sizing of every variant.
@@ -568,6 +569,13 @@ pub fn size_from_years(
         storage_l: storage[k.min(storage.len() - 1)],
         longest_low_run_days: runs[k.min(runs.len() - 1)],
         rain,
+        operator_h_per_day: economics::operator_time(
+            v,
+            &loaded.design.costs,
+            units,
+            format!("{units} units sized"),
+        )
+        .installation_h_per_day,
     }))
 }
 

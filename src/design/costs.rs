@@ -22,9 +22,6 @@ pub struct Costs {
     pub labour_rate_per_h: f64,
     /// Operator labour rate [currency h⁻¹], [0, 1e5]; default 1.0 (invented demo rate).
     pub operator_rate_per_h: f64,
-    /// Operator time per still and day: filling, flushing, cleaning the cover [min day⁻¹],
-    /// [0, 600]; default 10 (common practice, no source).
-    pub operator_min_per_day: f64,
     /// Yearly upkeep (spares, small repairs) as a fraction of the capital cost [year⁻¹],
     /// [0, 1]; default 0.02 (common practice, no source).
     pub upkeep_fraction_per_year: f64,
@@ -57,6 +54,9 @@ pub struct Costs {
     pub weights: ComplexityWeights,
     /// Labour hours per visible part of the build.
     pub labour: LabourRates,
+    /// The operator's upkeep tasks: a daily round of the installation plus per-unit and
+    /// per-m² tasks.
+    pub operator: OperatorTasks,
     /// Acceptable substitutes per role, tried by `stillbench cost --substitutes`.
     pub substitutes: Substitutes,
 }
@@ -68,7 +68,6 @@ impl Default for Costs {
             discount_rate: 0.10,
             labour_rate_per_h: 2.0,
             operator_rate_per_h: 1.0,
-            operator_min_per_day: 10.0,
             upkeep_fraction_per_year: 0.02,
             salvage_fraction: 0.10,
             yield_loss_per_year: 0.01,
@@ -81,6 +80,7 @@ impl Default for Costs {
             items: PartItems::default(),
             weights: ComplexityWeights::default(),
             labour: LabourRates::default(),
+            operator: OperatorTasks::default(),
             substitutes: Substitutes::default(),
         }
     }
@@ -200,6 +200,56 @@ impl Default for LabourRates {
     }
 }
 
+/// `[costs.operator]`: the operator's time to keep an installation running, as a daily round
+/// of the whole installation plus tasks per unit and per m² of cover. Every default is common
+/// practice, no source (no published time study of solar-still upkeep was found); set them
+/// from the site's own practice.
+///
+/// Which per-unit tasks a unit needs follows from its kind and `[variant.operation]`: a
+/// basin fed by hand (`feed = "batch"`) is filled at each refill hour and flushed by hand;
+/// a basin on a float valve, drip or controller, and the self-feeding kinds (wick and
+/// multi-effect, fed continuously from a header line), only have their feed checked.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct OperatorTasks {
+    /// The daily round of the installation: walking it, looking over every unit, refilling
+    /// the feed tank, keeping the log [min day⁻¹], [0, 600]; default 20.
+    pub round_min_per_day: f64,
+    /// Filling one hand-fed basin once [min], [0, 60]; default 2 (carrying and pouring a
+    /// bucket or opening a tap to the mark).
+    pub fill_min: f64,
+    /// Flushing one basin by hand once [min], [0, 60]; default 3 (opening the drain, letting
+    /// the brine go, closing it).
+    pub flush_min: f64,
+    /// Days between flushes of a basin drained when its salinity reaches the limit
+    /// (`flush = "salinity-limit"`) [days], [1, 365]; default 7.
+    pub salinity_flush_interval_days: f64,
+    /// Checking the feed of a unit fed by a valve, a drip or a feed line (clearing a blocked
+    /// dripper, watching the run-off) [min day⁻¹], [0, 60]; default 0.5.
+    pub feed_check_min_per_day: f64,
+    /// Emptying or swapping one unit's distillate bottle [min day⁻¹], [0, 60]; default 1.
+    pub bottle_min_per_day: f64,
+    /// Cleaning a cover once, per m² of cover [min m⁻²], [0, 60]; default 1.
+    pub cover_clean_min_per_m2: f64,
+    /// Days between cover cleanings [days], [1, 365]; default 7.
+    pub cover_clean_interval_days: f64,
+}
+
+impl Default for OperatorTasks {
+    fn default() -> Self {
+        OperatorTasks {
+            round_min_per_day: 20.0,
+            fill_min: 2.0,
+            flush_min: 3.0,
+            salinity_flush_interval_days: 7.0,
+            feed_check_min_per_day: 0.5,
+            bottle_min_per_day: 1.0,
+            cover_clean_min_per_m2: 1.0,
+            cover_clean_interval_days: 7.0,
+        }
+    }
+}
+
 /// `[costs.substitutes]`: acceptable substitutes per role, as library ids. Empty by default.
 #[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
 #[serde(deny_unknown_fields, default)]
@@ -257,15 +307,55 @@ pub(crate) fn validate(r: &mut Reader<'_>, c: &Costs) {
     ] {
         check(r, &format!("costs.{name}"), v, 0.0, 1e5, false, "per h");
     }
-    check(
-        r,
-        "costs.operator_min_per_day",
-        c.operator_min_per_day,
-        0.0,
-        600.0,
-        false,
-        "min/day",
-    );
+    let o = &c.operator;
+    for (name, v, lo, hi, unit) in [
+        (
+            "round_min_per_day",
+            o.round_min_per_day,
+            0.0,
+            600.0,
+            "min/day",
+        ),
+        ("fill_min", o.fill_min, 0.0, 60.0, "min"),
+        ("flush_min", o.flush_min, 0.0, 60.0, "min"),
+        (
+            "salinity_flush_interval_days",
+            o.salinity_flush_interval_days,
+            1.0,
+            365.0,
+            "days",
+        ),
+        (
+            "feed_check_min_per_day",
+            o.feed_check_min_per_day,
+            0.0,
+            60.0,
+            "min/day",
+        ),
+        (
+            "bottle_min_per_day",
+            o.bottle_min_per_day,
+            0.0,
+            60.0,
+            "min/day",
+        ),
+        (
+            "cover_clean_min_per_m2",
+            o.cover_clean_min_per_m2,
+            0.0,
+            60.0,
+            "min/m2",
+        ),
+        (
+            "cover_clean_interval_days",
+            o.cover_clean_interval_days,
+            1.0,
+            365.0,
+            "days",
+        ),
+    ] {
+        check(r, &format!("costs.operator.{name}"), v, lo, hi, false, unit);
+    }
     for (name, v, hi) in [
         ("upkeep_fraction_per_year", c.upkeep_fraction_per_year, 1.0),
         ("salvage_fraction", c.salvage_fraction, 1.0),

@@ -34,7 +34,7 @@ pub use calibration::{
     CalibrationFactors, DISTILLATE_FACTOR_RANGE,
 };
 pub use climate_inputs::EPW_WIND_HEIGHT_M;
-pub use costs::{ComplexityWeights, Costs, LabourRates, PartItems, Substitutes};
+pub use costs::{ComplexityWeights, Costs, LabourRates, OperatorTasks, PartItems, Substitutes};
 pub use library::{
     Condensate, CoverProps, InsulationProps, Item, Library, LibraryHeader, PlateProps, ROLE_NAMES,
     Role, Stock, SurfaceProps, Unit, WickProps,

@@ -22,6 +22,9 @@ pub struct YieldEstimate {
     pub annual_litres: f64,
     /// Distillate expected on a clear commissioning day [L], low and high.
     pub clear_day_litres: Option<(f64, f64)>,
+    /// One unit's distillate on a mean day of its worst month [L day⁻¹], which sizes the
+    /// installation the operator's round is shared over.
+    pub worst_month_l_day: Option<f64>,
 }
 
 /// Half-width of the commissioning range around the model's figure, as a fraction (±15 %):
@@ -56,6 +59,7 @@ impl YieldEstimate {
         YieldEstimate {
             annual_litres: r.annual_l,
             clear_day_litres,
+            worst_month_l_day: Some(r.worst_month.l_m2_day * r.footprint_m2),
         }
     }
 }
@@ -96,10 +100,17 @@ pub struct CostSummary {
     pub replacements: Vec<Replacement>,
     /// Their present worth [currency].
     pub replacements_present_worth: f64,
-    /// Operator time [h year⁻¹].
+    /// The operator's time for the installation this unit belongs to.
+    pub operator: super::operator::OperatorTime,
+    /// This unit's share of the operator's time [h year⁻¹].
     pub operator_h_per_year: f64,
-    /// Yearly upkeep: fraction of capital plus operator time [currency year⁻¹].
+    /// This unit's share of the operator's pay [currency year⁻¹].
+    pub operator_cost_per_year: f64,
+    /// Yearly upkeep of the unit: spares and small repairs, a fraction of capital; no
+    /// operator time [currency year⁻¹].
     pub upkeep_per_year: f64,
+    /// Yearly running cost: upkeep plus operator pay [currency year⁻¹].
+    pub running_per_year: f64,
     /// Salvage at the end of the life [currency].
     pub salvage: f64,
     /// Life [years].
@@ -110,7 +121,7 @@ pub struct CostSummary {
     pub crf: f64,
     /// Sinking-fund factor [year⁻¹].
     pub sff: f64,
-    /// Annualised cost: (capital + replacements)·CRF + upkeep − salvage·SFF [currency year⁻¹].
+    /// Annualised cost: (capital + replacements)·CRF + running − salvage·SFF [currency year⁻¹].
     pub annualised: f64,
     /// Yield loss per year used [year⁻¹] (plastic-cover loss included).
     pub yield_loss_per_year: f64,
@@ -218,14 +229,18 @@ pub fn cost_of(
         }
     }
     let replacements_pw: f64 = replacements.iter().map(|r| r.present_worth).sum();
-    let operator_h_per_year = c.operator_min_per_day / 60.0 * 365.0;
-    let upkeep_per_year =
-        c.upkeep_fraction_per_year * capital + operator_h_per_year * c.operator_rate_per_h;
+    let (units, basis) =
+        super::operator::installation_units(loaded, yield_.and_then(|y| y.worst_month_l_day));
+    let operator = super::operator::operator_time(v, c, units, basis);
+    let operator_h_per_year = operator.unit_share_h_per_year;
+    let operator_cost_per_year = operator_h_per_year * c.operator_rate_per_h;
+    let upkeep_per_year = c.upkeep_fraction_per_year * capital;
+    let running_per_year = upkeep_per_year + operator_cost_per_year;
     let salvage = c.salvage_fraction * capital;
     let annualised = finance::annualised_cost(
         capital + replacements_pw,
         crf,
-        upkeep_per_year,
+        running_per_year,
         salvage,
         sff,
     );
@@ -290,8 +305,11 @@ pub fn cost_of(
             capital_per_m2: capital / v.footprint_m2(),
             replacements,
             replacements_present_worth: replacements_pw,
+            operator,
             operator_h_per_year,
+            operator_cost_per_year,
             upkeep_per_year,
+            running_per_year,
             salvage,
             life_years: n,
             discount_rate: i,

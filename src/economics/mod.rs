@@ -4,7 +4,8 @@
 //! Flow: [`takeoff::takeoff`] turns a variant's geometry into needs (each with the formula it
 //! came from) → [`bom::price`] picks library items, nests sheets and bars
 //! ([`cutlist`]), converts units and prices each line → [`complexity`] scores the build and
-//! writes the steps → [`cost::cost_variant`] adds labour, replacements, upkeep, salvage and,
+//! writes the steps → [`cost::cost_variant`] adds labour, replacements, upkeep, the operator's time
+//! ([`operator`]), salvage and,
 //! when the simulation gives a yield, the cost per litre ([`finance`]).
 //!
 //! Errors a user can cause (an item missing from the library, a unit that cannot hold the
@@ -16,9 +17,11 @@ pub mod complexity;
 pub mod cost;
 pub mod cutlist;
 pub mod finance;
+pub mod operator;
 pub mod takeoff;
 
 pub use cost::{
     SubstituteRun, VariantCost, YieldEstimate, cost_of, cost_variant, substitute, substitutes,
 };
 pub use finance::{annualised_cost, capital_recovery_factor, cost_per_litre, sinking_fund_factor};
+pub use operator::{OperatorTime, UnitTask, operator_time};

@@ -203,6 +203,7 @@ fn mean_year_sizing(
             land_m2: s.land_m2,
             capital: s.capital,
             array_worst_month_l_day: s.array_worst_month_l_day,
+            operator_h_per_day: s.operator_h_per_day,
         }),
     )
 }
@@ -243,6 +244,21 @@ pub fn build_context_with(
     progress: Option<Progress<'_>>,
 ) -> Result<ReportContext, Error> {
     let (demand_l_day, people, per_person, demand_from) = resolve_demand(loaded, opts.demand)?;
+    // The operator's round is shared over the installation sized for this demand, so the
+    // evaluation (cost per litre) sees the demand given on the command line too.
+    let with_demand;
+    let loaded = if matches!(opts.demand, DemandChoice::FromDesign) {
+        loaded
+    } else {
+        let mut l = loaded.clone();
+        l.design.project.demand = Some(crate::design::Demand {
+            people,
+            litres_per_person_day: per_person,
+            litres_per_day: people.is_none().then_some(demand_l_day),
+        });
+        with_demand = l;
+        &with_demand
+    };
     let weather: SiteWeather = stills::site_weather(loaded)?;
     let ev: DesignEvaluation = compare::evaluate_design(loaded, &weather, &RunOptions::default())?;
     let currency = ev.currency.clone();
@@ -435,7 +451,10 @@ pub fn build_context_with(
                     capital: c.capital,
                     replacements_present_worth: c.replacements_present_worth,
                     operator_h_per_year: c.operator_h_per_year,
+                    operator_cost_per_year: c.operator_cost_per_year,
                     upkeep_per_year: c.upkeep_per_year,
+                    installation_units: c.operator.units,
+                    installation_operator_h_per_day: c.operator.installation_h_per_day,
                     annualised: c.annualised,
                     life_years: c.life_years,
                     discount_rate: c.discount_rate,

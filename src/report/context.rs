@@ -135,6 +135,8 @@ pub struct ConfidentSizing {
     pub met_fraction: f64,
     /// Worst-month output of the array in the year that set the size [L day⁻¹].
     pub array_worst_month_l_day: f64,
+    /// Operator time to run the array [h day⁻¹].
+    pub operator_h_per_day: f64,
 }
 
 /// A variant left out, and why.
@@ -161,6 +163,8 @@ pub struct SizingRow {
     pub capital: f64,
     /// Worst-month output of the array [L day⁻¹].
     pub array_worst_month_l_day: f64,
+    /// Operator time to run the array [h day⁻¹].
+    pub operator_h_per_day: f64,
 }
 
 /// Demand and published per-person figures.
@@ -315,10 +319,16 @@ pub struct LifeCycleRow {
     pub capital: f64,
     /// Present worth of replacements [currency].
     pub replacements_present_worth: f64,
-    /// Operator time [h year⁻¹].
+    /// One unit's share of the installation's operator time [h year⁻¹].
     pub operator_h_per_year: f64,
-    /// Upkeep per year including operator time [currency year⁻¹].
+    /// One unit's share of the operator's pay [currency year⁻¹].
+    pub operator_cost_per_year: f64,
+    /// Upkeep per year: spares and small repairs, no operator time [currency year⁻¹].
     pub upkeep_per_year: f64,
+    /// Units of the installation the operator's round is shared over.
+    pub installation_units: u64,
+    /// Operator time of that installation [h day⁻¹].
+    pub installation_operator_h_per_day: f64,
     /// Annualised cost [currency year⁻¹].
     pub annualised: f64,
     /// Life [years].

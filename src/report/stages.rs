@@ -166,6 +166,7 @@ pub fn confident_sizing(
             capital: s.capital,
             met_fraction: s.met_fraction,
             array_worst_month_l_day: s.array_worst_month_l_day,
+            operator_h_per_day: s.operator_h_per_day,
         }),
     )
 }

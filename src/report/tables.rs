@@ -83,6 +83,11 @@ pub fn tables(ctx: &ReportContext) -> Vec<Table> {
         ("land_m2", json!(s.sizing.land_m2), "m²".into()),
         ("capital", json!(s.sizing.capital), cur.clone()),
         (
+            "operator_h_per_day",
+            json!(s.sizing.operator_h_per_day),
+            "h/day".into(),
+        ),
+        (
             "cost_per_person_year",
             json!(s.cost_per_person_year),
             format!("{cur}/person/year"),
@@ -119,6 +124,11 @@ pub fn tables(ctx: &ReportContext) -> Vec<Table> {
             ("confident_land_m2", json!(c.land_m2), "m²".into()),
             ("confident_storage_l", json!(c.storage_l), "L".into()),
             ("confident_capital", json!(c.capital), cur.clone()),
+            (
+                "confident_operator_h_per_day",
+                json!(c.operator_h_per_day),
+                "h/day".into(),
+            ),
         ] {
             t.rows.push(vec![json!(k), v, json!(u)]);
         }
@@ -211,6 +221,7 @@ pub fn tables(ctx: &ReportContext) -> Vec<Table> {
             "land_m2",
             "capital",
             "array_worst_month_l_day",
+            "operator_h_per_day",
         ],
     );
     for r in &ctx.variants.sizing {
@@ -221,6 +232,7 @@ pub fn tables(ctx: &ReportContext) -> Vec<Table> {
             json!(r.land_m2),
             json!(r.capital),
             json!(r.array_worst_month_l_day),
+            json!(r.operator_h_per_day),
         ]);
     }
     out.push(t);
@@ -256,7 +268,10 @@ pub fn tables(ctx: &ReportContext) -> Vec<Table> {
             "variant",
             "capital",
             "replacements_present_worth",
-            "operator_h_per_year",
+            "installation_units",
+            "installation_operator_h_per_day",
+            "unit_operator_h_per_year",
+            "unit_operator_cost_per_year",
             "upkeep_per_year",
             "annualised",
             "life_years",
@@ -270,7 +285,10 @@ pub fn tables(ctx: &ReportContext) -> Vec<Table> {
             json!(r.name),
             json!(r.capital),
             json!(r.replacements_present_worth),
+            json!(r.installation_units),
+            json!(r.installation_operator_h_per_day),
             json!(r.operator_h_per_year),
+            json!(r.operator_cost_per_year),
             json!(r.upkeep_per_year),
             json!(r.annualised),
             json!(r.life_years),

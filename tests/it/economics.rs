@@ -356,6 +356,7 @@ fn with_a_yield_the_cost_per_litre_follows_the_crf_formula() {
     let y = economics::YieldEstimate {
         annual_litres: 1000.0,
         clear_day_litres: Some((5.0, 7.0)),
+        worst_month_l_day: None,
     };
     let r = economics::cost_variant(&d, 0, Some(&y)).unwrap();
     // With no yield loss the levelised yield equals the first year's (finance algebra), so

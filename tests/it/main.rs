@@ -9,6 +9,7 @@ mod compare_sweep;
 mod compare_uncertainty;
 mod design;
 mod economics;
+mod economics_operator;
 mod network;
 mod operation;
 mod physics_sun;
