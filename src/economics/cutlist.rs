@@ -1,10 +1,13 @@
 //! Cut list: nesting rectangular parts onto stock sheets and lengths onto stock bars.
 //!
 //! Sheets use *first-fit decreasing shelf packing* (a guillotine method: every cut runs
-//! straight across a sheet or a shelf, as a glass cutter or a saw works). Parts are taken
-//! longest side first; each is put on the first open shelf where it fits (either way round),
-//! else on a new shelf of the first sheet with room, else on a new sheet of the smallest stock
-//! size that holds it. Bars use *first-fit decreasing* on one dimension. No part is ever placed
+//! straight across a sheet or a shelf, as a glass cutter or a saw works). A shelf is a strip
+//! across the sheet as high as its first part; it is cut into stacks side by side, and a
+//! stack holds parts one above the other up to the shelf's height (three guillotine stages:
+//! shelf, stack, part). Parts are taken longest side first; each is put on top of the first
+//! stack where it fits (either way round), else in a new stack of the first shelf with width
+//! left, else on a new shelf of the first sheet with room, else on a new sheet of the smallest
+//! stock size that holds it. Bars use *first-fit decreasing* on one dimension. No part is ever placed
 //! on a stock piece smaller than itself: a part that fits no stock is an error, and the caller
 //! splits it first ([`split_pane`]).
 
@@ -13,7 +16,8 @@ use serde::Serialize;
 use crate::design::Stock;
 
 /// Name of the sheet method, for reports.
-pub const SHEET_METHOD: &str = "first-fit decreasing shelf (guillotine) packing, rotation allowed";
+pub const SHEET_METHOD: &str =
+    "first-fit decreasing shelf (guillotine) packing with stacks in each shelf, rotation allowed";
 /// Name of the bar method, for reports.
 pub const BAR_METHOD: &str = "first-fit decreasing on length";
 
@@ -104,6 +108,14 @@ struct Shelf {
     y_m: f64,
     height_m: f64,
     used_m: f64,
+    stacks: Vec<Stack>,
+}
+
+/// A column of a shelf: parts one above the other, no wider than its first part.
+struct Stack {
+    x_m: f64,
+    width_m: f64,
+    used_m: f64,
 }
 
 struct OpenSheet {
@@ -121,6 +133,26 @@ impl OpenSheet {
 
     /// Try to place a part of sides (a, b), either way round. Returns true when placed.
     fn place(&mut self, label: &str, a: f64, b: f64) -> bool {
+        // On top of a stack of an open shelf.
+        for s in &mut self.shelves {
+            for k in &mut s.stacks {
+                for (across, along) in [(a, b), (b, a)] {
+                    if across <= k.width_m + FIT_TOL_M && k.used_m + along <= s.height_m + FIT_TOL_M
+                    {
+                        self.placements.push(Placement {
+                            label: label.to_string(),
+                            x_m: k.x_m,
+                            y_m: s.y_m + k.used_m,
+                            across_m: across,
+                            along_m: along,
+                        });
+                        k.used_m += along;
+                        return true;
+                    }
+                }
+            }
+        }
+        // A new stack in the width left on an open shelf.
         for (across, along) in [(a, b), (b, a)] {
             for s in &mut self.shelves {
                 if along <= s.height_m + FIT_TOL_M && s.used_m + across <= self.width_m + FIT_TOL_M
@@ -131,6 +163,11 @@ impl OpenSheet {
                         y_m: s.y_m,
                         across_m: across,
                         along_m: along,
+                    });
+                    s.stacks.push(Stack {
+                        x_m: s.used_m,
+                        width_m: across,
+                        used_m: along,
                     });
                     s.used_m += across;
                     return true;
@@ -147,6 +184,11 @@ impl OpenSheet {
                     y_m: top,
                     height_m: along,
                     used_m: across,
+                    stacks: vec![Stack {
+                        x_m: 0.0,
+                        width_m: across,
+                        used_m: along,
+                    }],
                 });
                 self.placements.push(Placement {
                     label: label.to_string(),

@@ -291,6 +291,56 @@ fn cut_list_hand_checked_example() {
 }
 
 #[test]
+fn four_basin_walls_share_one_plywood_sheet_by_stacking_in_a_shelf() {
+    // Hand-solved layout (the stepped demo's walls): front 0.080 × 2.000, back 0.444 × 2.000
+    // and two sides 0.444 × 1.000 m on one 1.22 × 2.44 m sheet. The 2 m walls open a shelf
+    // 2.0 m high (0.080 + 0.444 = 0.524 m of its 1.22 m width); the first side stands in a new
+    // stack beside them (0.524 + 0.444 = 0.968 m); the second goes on top of it (1.0 + 1.0 =
+    // 2.0 m of the shelf's 2.0 m). One sheet, where the shelf alone opened a second (the
+    // fourth wall fits neither beside, 1.412 > 1.22 m, nor on a new shelf, 2.444 > 2.44 m).
+    let stock = [Stock {
+        width_m: Some(1.22),
+        length_m: 2.44,
+        thickness_mm: None,
+        roll: false,
+    }];
+    let parts = [
+        ("front wall", 0.080, 2.0),
+        ("back wall", 0.444, 2.0),
+        ("side wall", 0.444, 1.0),
+        ("side wall", 0.444, 1.0),
+    ]
+    .map(|(l, a, b)| Part {
+        label: l.into(),
+        a_m: a,
+        b_m: b,
+    });
+    let plan = cutlist::nest_sheets(&parts, &stock).unwrap();
+    assert_eq!(plan.sheets.len(), 1);
+    // Bought 1.22 × 2.44 = 2.9768 m²; exact arithmetic, round-off tolerance.
+    assert!((plan.stock_m2 - 2.9768).abs() < 1e-12);
+    let sides: Vec<_> = plan.sheets[0]
+        .placements
+        .iter()
+        .filter(|p| p.label == "side wall")
+        .collect();
+    assert!((sides[0].x_m - 0.524).abs() < 1e-9 && sides[0].y_m.abs() < 1e-12);
+    assert!((sides[1].x_m - 0.524).abs() < 1e-9 && (sides[1].y_m - 1.0).abs() < 1e-9);
+    // No two placements overlap and all lie on the sheet.
+    let pl = &plan.sheets[0].placements;
+    for (i, p) in pl.iter().enumerate() {
+        assert!(p.x_m + p.across_m <= 1.22 + 1e-9 && p.y_m + p.along_m <= 2.44 + 1e-9);
+        for q in &pl[i + 1..] {
+            let apart = p.x_m + p.across_m <= q.x_m + 1e-9
+                || q.x_m + q.across_m <= p.x_m + 1e-9
+                || p.y_m + p.along_m <= q.y_m + 1e-9
+                || q.y_m + q.along_m <= p.y_m + 1e-9;
+            assert!(apart, "{} overlaps {}", p.label, q.label);
+        }
+    }
+}
+
+#[test]
 fn film_cover_substitute_is_cheaper_shorter_lived_and_changes_the_optics() {
     let d = one_variant(SINGLE_1X2_20);
     let (base, runs) = economics::substitutes(&d, 0, &|_| None).unwrap();
