@@ -122,7 +122,17 @@ pub(crate) fn parse_design(
     }
 
     if let Some(p) = &project {
-        validate::project(&mut r, p, library.as_ref().map(|(l, _)| l));
+        let given = |field: &str| {
+            root.get("costs")
+                .and_then(|c| c.get_ref().as_table())
+                .is_some_and(|t| t.get(field).is_some())
+        };
+        validate::project(
+            &mut r,
+            p,
+            library.as_ref().map(|(l, _)| l),
+            [given("labour_rate_per_h"), given("operator_rate_per_h")],
+        );
     }
     if let Some(v) = &variants {
         validate::variants(&mut r, v, library.as_ref().map(|(l, _)| l));

@@ -57,6 +57,33 @@ pub struct Project {
     /// Water demand to size for, if any.
     #[serde(default)]
     pub demand: Option<Demand>,
+    /// `[project.money_scales]`: the money reference scales of the ranking in the project
+    /// currency (needed when the currency is not USD).
+    #[serde(default)]
+    pub money_scales: Option<MoneyScales>,
+}
+
+/// `[project.money_scales]`: how the ranking's two money references (cost per litre, capital
+/// per L/day of worst-month capacity) are stated in the project currency. Either an exchange
+/// rate with its date and source, which converts the built-in USD references, or the two
+/// references themselves; a reference given directly wins over the converted one.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct MoneyScales {
+    /// Units of the project currency per US dollar, (0, 1e7].
+    #[serde(default)]
+    pub per_usd: Option<f64>,
+    /// Date the rate was quoted, `YYYY-MM-DD`; required with `per_usd`.
+    #[serde(default)]
+    pub rate_date: Option<String>,
+    /// Reference cost per litre [currency L⁻¹], (0, 1e7].
+    #[serde(default)]
+    pub cost_per_litre: Option<f64>,
+    /// Reference capital per L/day of worst-month capacity [currency (L day⁻¹)⁻¹], (0, 1e10].
+    #[serde(default)]
+    pub capital_per_l_day: Option<f64>,
+    /// Where the rate or the references come from, 1–200 characters.
+    pub source: String,
 }
 
 fn default_currency() -> String {

@@ -102,22 +102,119 @@ fn currency(r: &mut Reader<'_>, path: &str, c: &str) -> bool {
     ok
 }
 
-/// `[project]`.
-pub(crate) fn project(r: &mut Reader<'_>, p: &Project, library: Option<&Library>) {
+/// A `YYYY-MM-DD` date with a month 1–12 and a day 1–31.
+fn is_iso_date(s: &str) -> bool {
+    let b = s.as_bytes();
+    if b.len() != 10 || b[4] != b'-' || b[7] != b'-' {
+        return false;
+    }
+    let num = |r: std::ops::Range<usize>| s.get(r).and_then(|t| t.parse::<u32>().ok());
+    matches!(
+        (num(0..4), num(5..7), num(8..10)),
+        (Some(y), Some(m), Some(d)) if y >= 1900 && (1..=12).contains(&m) && (1..=31).contains(&d)
+    )
+}
+
+/// `[project]`. `costs_money_given` says whether `[costs]` sets `labour_rate_per_h` and
+/// `operator_rate_per_h` (their defaults are invented USD rates).
+pub(crate) fn project(
+    r: &mut Reader<'_>,
+    p: &Project,
+    library: Option<&Library>,
+    costs_money_given: [bool; 2],
+) {
     text_len(r, "project.title", &p.title, 200);
     let currency_ok = currency(r, "project.currency", &p.currency);
     if let Some(lib) = library
         && currency_ok
         && lib.library.currency != p.currency
     {
-        r.warn(
+        r.error(
             "project.currency",
             format!(
-                "the project currency is {} but the materials library prices are in {}; costs \
-                 will be in {}",
-                p.currency, lib.library.currency, lib.library.currency
+                "\"{}\" does not match the materials library, whose prices are in {}; allowed: \
+                 the library's currency (set `currency = \"{}\"` here, or use a library priced \
+                 in {}), since every cost is counted in the library's prices",
+                p.currency, lib.library.currency, lib.library.currency, p.currency
             ),
         );
+    }
+    if currency_ok && p.currency != "USD" {
+        for (given, field) in costs_money_given
+            .iter()
+            .zip(["labour_rate_per_h", "operator_rate_per_h"])
+        {
+            if !given {
+                r.error(
+                    &format!("costs.{field}"),
+                    format!(
+                        "required when the project counts in {}: its default is an invented \
+                         rate in USD; give the local rate in {} per hour",
+                        p.currency, p.currency
+                    ),
+                );
+            }
+        }
+    }
+    if let Some(m) = &p.money_scales {
+        text_len(r, "project.money_scales.source", &m.source, 200);
+        opt_range(
+            r,
+            "project.money_scales.per_usd",
+            m.per_usd,
+            B::Ex(0.0),
+            B::In(1e7),
+            &format!("{} per USD", p.currency),
+        );
+        opt_range(
+            r,
+            "project.money_scales.cost_per_litre",
+            m.cost_per_litre,
+            B::Ex(0.0),
+            B::In(1e7),
+            &format!("{}/L", p.currency),
+        );
+        opt_range(
+            r,
+            "project.money_scales.capital_per_l_day",
+            m.capital_per_l_day,
+            B::Ex(0.0),
+            B::In(1e10),
+            &format!("{} per L/day", p.currency),
+        );
+        match (&m.per_usd, &m.rate_date) {
+            (Some(_), None) => r.error(
+                "project.money_scales.rate_date",
+                "required with `per_usd`: the date the rate was quoted, as \"YYYY-MM-DD\""
+                    .to_string(),
+            ),
+            (None, Some(_)) => r.error(
+                "project.money_scales.rate_date",
+                "only meaningful together with `per_usd`".to_string(),
+            ),
+            (Some(_), Some(d)) if !is_iso_date(d) => r.error(
+                "project.money_scales.rate_date",
+                format!("\"{d}\" is not a date; allowed \"YYYY-MM-DD\", e.g. \"2026-11-30\""),
+            ),
+            _ => {}
+        }
+        if m.per_usd.is_none() && (m.cost_per_litre.is_none() || m.capital_per_l_day.is_none()) {
+            r.error(
+                "project.money_scales",
+                "give `per_usd` (with `rate_date`), or both `cost_per_litre` and \
+                 `capital_per_l_day`"
+                    .to_string(),
+            );
+        }
+        if let Some(x) = m.per_usd
+            && p.currency == "USD"
+            && (x - 1.0).abs() > 1e-12
+        {
+            r.error(
+                "project.money_scales.per_usd",
+                format!("{x} given, but the project counts in USD; allowed 1 (or leave it out)"),
+            );
+        }
     }
     if let Some(d) = &p.demand {
         match (d.people, d.litres_per_day) {
