@@ -333,6 +333,65 @@ impl Scales {
         })
     }
 
+    /// The scales a design ranks on: the defaults, with the two money references taken from
+    /// its `[project.money_scales]` — given directly, or the USD defaults times `per_usd`.
+    /// A design counting in USD needs no table.
+    ///
+    /// Errors: a design counting in another currency without `[project.money_scales]` (the
+    /// message says what to give).
+    pub fn for_project(p: &crate::design::Project) -> Result<Self, BadList> {
+        let mut s = Scales::default();
+        let Some(m) = &p.money_scales else {
+            if p.currency == s.currency {
+                return Ok(s);
+            }
+            return Err(BadList(format!(
+                "the design counts in {c}, but the ranking's money references ({cost} USD/L, \
+                 {cap} USD per L/day) are in USD; add [project.money_scales] with `per_usd` \
+                 (the {c} per USD rate), `rate_date` and `source`, or with `cost_per_litre` \
+                 and `capital_per_l_day` in {c}",
+                c = p.currency,
+                cost = REFERENCE_COST_PER_L_USD,
+                cap = REFERENCE_CAPITAL_PER_L_DAY_USD,
+            )));
+        };
+        let rate = m.per_usd.unwrap_or(1.0);
+        let cost = m
+            .cost_per_litre
+            .or(m.per_usd.map(|_| REFERENCE_COST_PER_L_USD * rate));
+        let capital = m
+            .capital_per_l_day
+            .or(m.per_usd.map(|_| REFERENCE_CAPITAL_PER_L_DAY_USD * rate));
+        match (cost, capital) {
+            (Some(cost), Some(capital)) => {
+                s.reference[Criterion::CostPerLitre.index()] = cost;
+                s.reference[Criterion::CapitalPerCapacity.index()] = capital;
+                s.currency = p.currency.clone();
+                Ok(s)
+            }
+            _ => Err(BadList(
+                "[project.money_scales] needs `per_usd`, or both `cost_per_litre` and \
+                 `capital_per_l_day`"
+                    .into(),
+            )),
+        }
+    }
+
+    /// These scales with the listed references replaced (`cost=40,capital=80000`).
+    pub fn with_overrides(&self, s: &str) -> Result<Self, BadList> {
+        let mut out = Scales::parse(s, &self.currency)?;
+        let keys: Vec<&str> = s
+            .split(',')
+            .filter_map(|p| p.split_once('=').map(|(k, _)| k.trim()))
+            .collect();
+        for c in Criterion::ALL {
+            if !keys.contains(&c.key()) {
+                out.reference[c.index()] = self.reference[c.index()];
+            }
+        }
+        Ok(out)
+    }
+
     /// The normalised value of `x` on criterion `c` (1 is good, 0 poor; linear, unbounded).
     pub fn normalise(&self, c: Criterion, x: f64) -> f64 {
         let r = self.reference[c.index()];
