@@ -34,6 +34,9 @@ fn parse_weights(s: &str) -> Result<Weights, String> {
     cost         cost per litre over the life [currency/L], reference 0.10 USD/L\n  \
     capital      capital per L/day of worst-month capacity [currency per L/day], reference 200 USD\n  \
     complexity   build-complexity score [points], reference 200\n\
+    A design counting in another currency states its two money references in\n\
+    [project.money_scales]: `per_usd` with `rate_date` and `source` (converting the USD\n\
+    references above), or `cost_per_litre` and `capital_per_l_day` in its own currency.\n\
     A yield scores 1 at its reference and 0 at nothing; a cost scores 1 at nothing and 0 at its\n\
     reference (linear both ways). The score is the weighted mean, so adding or removing a\n\
     variant never reorders the others.\n\n\
@@ -48,8 +51,9 @@ pub struct CompareArgs {
     /// keys keep their defaults: yield=1,worst-month=2,cost=2,capital=1,complexity=1.
     #[arg(long, value_name = "LIST", value_parser = parse_weights)]
     pub weights: Option<Weights>,
-    /// Reference scales as key=value pairs, replacing the defaults shown below; money in the
-    /// design's currency. Required (cost and capital) when the design does not count in USD.
+    /// Reference scales as key=value pairs, replacing the design's own (the defaults shown
+    /// below, with the money references from `[project.money_scales]`); money in the
+    /// design's currency.
     #[arg(long, value_name = "LIST")]
     pub scales: Option<String>,
     /// Monte Carlo samples for P10/P50/P90 of each variant's yield (as `stillbench
@@ -75,36 +79,35 @@ fn bad_option(file: &std::path::Path, option: &str, message: String) -> anyhow::
     .into()
 }
 
-/// The reference scales for a design counting in `currency`.
+/// The reference scales for a design: its own (`Scales::for_project`: the defaults, with the
+/// money references from `[project.money_scales]`, which validation requires of a design in
+/// another currency), then the `--scales` overrides; with the sentence saying where the
+/// money references come from.
 fn scales_for(
     file: &std::path::Path,
     given: Option<&str>,
-    currency: &str,
-) -> anyhow::Result<Scales> {
-    let defaults = Scales::default();
-    let keys: Vec<&str> = given
-        .unwrap_or("")
-        .split(',')
-        .filter_map(|p| p.split_once('=').map(|(k, _)| k.trim()))
-        .collect();
-    if currency != defaults.currency {
-        for money in [Criterion::CostPerLitre, Criterion::CapitalPerCapacity] {
-            if !keys.contains(&money.key()) {
-                return Err(bad_option(
-                    file,
-                    "--scales",
-                    format!(
-                        "the default {} scale is in {}, but the design counts in {currency}; \
-                         give `--scales cost=…,capital=…` in {currency}",
-                        money.label(),
-                        defaults.currency
-                    ),
-                ));
-            }
+    project: &stillbench::design::Project,
+) -> anyhow::Result<(Scales, String)> {
+    let base = Scales::for_project(project)
+        .map_err(|e| bad_option(file, "project.money_scales", e.to_string()))?;
+    let mut basis = base.money_basis(project);
+    let Some(g) = given else {
+        return Ok((base, basis));
+    };
+    let scales = base
+        .with_overrides(g)
+        .map_err(|e| bad_option(file, "--scales", e.to_string()))?;
+    for c in [Criterion::CostPerLitre, Criterion::CapitalPerCapacity] {
+        let (was, now) = (base.reference[c.index()], scales.reference[c.index()]);
+        if was != now {
+            basis.push_str(&format!(
+                " For this run `--scales` replaces the {} reference by {}.",
+                c.label(),
+                compare::rank::figure(c, now, &scales.currency)
+            ));
         }
     }
-    Scales::parse(given.unwrap_or(""), currency)
-        .map_err(|e| bad_option(file, "--scales", e.to_string()))
+    Ok((scales, basis))
 }
 
 /// Everything the command prints.
@@ -120,6 +123,9 @@ pub struct Report {
     pub weights: [f64; 5],
     /// Reference scales by criterion.
     pub scales: [f64; 5],
+    /// Where the two money references come from (`[project.money_scales]` or the built-in USD
+    /// references), and what `--scales` replaced.
+    pub money_basis: String,
     /// Best first.
     pub ranking: Vec<Ranked>,
     /// Names on the Pareto front, best rank first.
@@ -137,6 +143,7 @@ pub fn report(
     ev: &DesignEvaluation,
     weights: &Weights,
     scales: &Scales,
+    money_basis: String,
 ) -> anyhow::Result<Report> {
     let ranking = compare::rank(&ev.candidates(), weights, scales)
         .map_err(|e| anyhow::anyhow!("ranking: {e}"))?;
@@ -151,6 +158,7 @@ pub fn report(
         criteria: Criterion::ALL.iter().map(|c| c.key()).collect(),
         weights: weights.0,
         scales: scales.reference,
+        money_basis,
         ranking,
         pareto_front,
         skipped: ev.skipped.clone(),
@@ -161,15 +169,24 @@ pub fn report(
 /// Run `compare`.
 pub fn run(args: &CompareArgs) -> anyhow::Result<()> {
     let loaded = super::load(args.design.as_deref())?;
-    let currency = loaded.design.project.currency.clone();
-    let scales = scales_for(&loaded.source, args.scales.as_deref(), &currency)?;
+    let (scales, money_basis) = scales_for(
+        &loaded.source,
+        args.scales.as_deref(),
+        &loaded.design.project,
+    )?;
     let weights = args.weights.unwrap_or_default();
     let weather = stills::site_weather(&loaded)?;
     let ev = compare::evaluate_design(&loaded, &weather, &stills::RunOptions::default())?;
     for s in &ev.skipped {
         eprintln!("note: `{}` is not ranked: {}", s.name, s.reason);
     }
-    let mut rep = report(&loaded.design.project.title, &ev, &weights, &scales)?;
+    let mut rep = report(
+        &loaded.design.project.title,
+        &ev,
+        &weights,
+        &scales,
+        money_basis,
+    )?;
     if args.samples > 0 {
         let opts = compare::UncertaintyOptions {
             samples: args.samples,
@@ -218,6 +235,7 @@ pub fn write_text(out: &mut impl Write, rep: &Report) -> std::io::Result<()> {
             compare::rank::figure(c, rep.scales[c.index()], cur)
         )?;
     }
+    writeln!(out, "  {}", rep.money_basis)?;
     writeln!(out)?;
     writeln!(
         out,

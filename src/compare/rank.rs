@@ -377,6 +377,52 @@ impl Scales {
         }
     }
 
+    /// One sentence saying where these scales' two money references come from, for the
+    /// report and `compare` (the built-in USD references, converted at the design's stated
+    /// rate, or stated by the design).
+    pub fn money_basis(&self, p: &crate::design::Project) -> String {
+        let cost = figure(
+            Criterion::CostPerLitre,
+            self.reference[Criterion::CostPerLitre.index()],
+            &self.currency,
+        );
+        let capital = figure(
+            Criterion::CapitalPerCapacity,
+            self.reference[Criterion::CapitalPerCapacity.index()],
+            &self.currency,
+        );
+        let head = format!("The money references are {cost} and {capital}");
+        let Some(m) = &p.money_scales else {
+            return format!(
+                "{head}: the built-in references in USD (from memory, low confidence; \
+                 docs/compare.md)."
+            );
+        };
+        let direct = match (m.cost_per_litre.is_some(), m.capital_per_l_day.is_some()) {
+            (true, true) => "both as the design states them",
+            (true, false) => "the cost per litre as the design states it",
+            (false, true) => "the capital per L/day as the design states it",
+            (false, false) => "",
+        };
+        match (m.per_usd, direct.is_empty()) {
+            (Some(rate), true) => format!(
+                "{head}: the built-in USD references converted at {rate} {} per USD (rate of \
+                 {}; source: {}).",
+                self.currency,
+                m.rate_date.as_deref().unwrap_or("an unstated date"),
+                m.source
+            ),
+            (Some(rate), false) => format!(
+                "{head}: {direct}, the other converted from the built-in USD reference at \
+                 {rate} {} per USD (rate of {}; source: {}).",
+                self.currency,
+                m.rate_date.as_deref().unwrap_or("an unstated date"),
+                m.source
+            ),
+            (None, _) => format!("{head}: {direct} (source: {}).", m.source),
+        }
+    }
+
     /// These scales with the listed references replaced (`cost=40,capital=80000`).
     pub fn with_overrides(&self, s: &str) -> Result<Self, BadList> {
         let mut out = Scales::parse(s, &self.currency)?;

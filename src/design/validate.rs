@@ -156,6 +156,17 @@ pub(crate) fn project(
             }
         }
     }
+    if currency_ok && p.currency != "USD" && p.money_scales.is_none() {
+        r.error(
+            "project.money_scales",
+            format!(
+                "required when the project counts in {c}: the ranking's money references are \
+                 stated in USD; give `per_usd` (the {c} per USD rate) with `rate_date` and \
+                 `source`, or `cost_per_litre` and `capital_per_l_day` in {c} with `source`",
+                c = p.currency
+            ),
+        );
+    }
     if let Some(m) = &p.money_scales {
         text_len(r, "project.money_scales.source", &m.source, 200);
         opt_range(

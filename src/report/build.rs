@@ -262,18 +262,8 @@ pub fn build_context_with(
     let weather: SiteWeather = stills::site_weather(loaded)?;
     let ev: DesignEvaluation = compare::evaluate_design(loaded, &weather, &RunOptions::default())?;
     let currency = ev.currency.clone();
-    let scales = Scales::default();
-    if currency != scales.currency {
-        return Err(option_error(
-            loaded,
-            "project.currency",
-            format!(
-                "the report ranks with compare's default reference scales, which are in {}; \
-                 this design counts in {currency} (rank it with `stillbench compare --scales`)",
-                scales.currency
-            ),
-        ));
-    }
+    let scales = Scales::for_project(&loaded.design.project)
+        .map_err(|e| option_error(loaded, "project.money_scales", e.to_string()))?;
     let ranking = compare::rank(&ev.candidates(), &Weights::default(), &scales).map_err(|e| {
         Error::Model {
             variant: String::new(),
@@ -578,6 +568,7 @@ pub fn build_context_with(
             pareto_front,
             monthly,
             sizing,
+            money_basis: scales.money_basis(&loaded.design.project),
         },
         justification,
         life_cycle,

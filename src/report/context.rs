@@ -240,6 +240,8 @@ pub struct VariantsSection {
     pub monthly: Vec<VariantMonths>,
     /// Sizing of every ranked variant for the demand, in ranking order.
     pub sizing: Vec<SizingRow>,
+    /// Where the ranking's money references come from (`Scales::money_basis`).
+    pub money_basis: String,
 }
 
 /// One variant's monthly yield.

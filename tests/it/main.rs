@@ -7,6 +7,7 @@ mod compare;
 mod compare_size;
 mod compare_sweep;
 mod compare_uncertainty;
+mod currency;
 mod design;
 mod economics;
 mod economics_operator;
