@@ -11,6 +11,7 @@ mod climate;
 mod compare;
 mod cost;
 mod demand;
+mod export;
 mod operate;
 mod report;
 mod simulate;

@@ -5,11 +5,13 @@
 use std::io::Write;
 use std::path::PathBuf;
 
-use anyhow::Context;
 use serde::Serialize;
 use stillbench::design::{self, LoadedDesign, Variant};
 use stillbench::operation::{self, DepthPoint, Tuning};
-use stillbench::stills::{self, HourRecord, MonthResult, RunOptions, VariantResult};
+use stillbench::output::table::{Table, TableSpec, num, text};
+use stillbench::stills::{self, HourRecord, RunOptions, VariantResult};
+
+use super::export::{ExportArgs, Plan};
 
 /// Output formats of `operate`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
@@ -18,7 +20,9 @@ pub enum Format {
     Text,
     /// One JSON document.
     Json,
-    /// One row per variant and month (or per depth with --depth-sweep).
+    /// One table: a row per variant and month (`--table months`, the default) or per
+    /// variant and hour of the day profile (`--table profile`); with --depth-sweep, a row
+    /// per variant and depth.
     Csv,
 }
 
@@ -56,7 +60,28 @@ pub struct OperateArgs {
         requires = "depth_sweep"
     )]
     pub step: f64,
+    /// Where the output goes, and which CSV table.
+    #[command(flatten)]
+    pub export: ExportArgs,
 }
+
+/// The CSV tables of `operate`.
+pub const TABLES: [TableSpec; 2] = [
+    TableSpec {
+        name: "months",
+        about: "one row per variant and month: feed, flush, dry-out, depth, salinity, control",
+    },
+    TableSpec {
+        name: "profile",
+        about: "one row per variant and hour of the profile month's day",
+    },
+];
+
+/// The CSV table of `operate --depth-sweep`.
+pub const SWEEP_TABLES: [TableSpec; 1] = [TableSpec {
+    name: "depths",
+    about: "one row per variant and set depth",
+}];
 
 fn bad_input(loaded: &LoadedDesign, path: &str, message: String) -> anyhow::Error {
     stillbench::Error::Design(design::DesignErrors(vec![design::DesignIssue {
@@ -229,110 +254,166 @@ fn month_name(m: u32) -> &'static str {
     N[(m.clamp(1, 12) - 1) as usize]
 }
 
-fn csv_row(r: &VariantResult, m: &MonthResult) -> Option<Vec<String>> {
-    let o = m.operation.as_ref()?;
-    Some(vec![
-        r.name.clone(),
-        m.month.to_string(),
-        format!("{:.4}", m.l_m2_day),
-        o.feed.to_owned(),
-        o.flush.to_owned(),
-        format!("{:.4}", o.feed_l),
-        format!("{:.4}", o.flush_l),
-        format!("{:.3}", o.dry_out_h),
-        format!("{:.3}", o.min_depth_mm),
-        format!("{:.3}", o.max_depth_mm),
-        format!("{:.2}", o.peak_salinity_g_kg),
-        format!("{:.4}", o.crust_kg),
-        format!("{:.4}", o.depth.mean_error_mm),
-        format!("{:.4}", o.depth.max_deviation_mm),
-        format!("{:.4}", o.depth.within_5pct_share),
-    ])
+fn months_table(runs: &[(&Variant, VariantResult, u32)]) -> Table {
+    let mut t = Table::new(
+        "months",
+        &[
+            "variant",
+            "month",
+            "l_m2_day",
+            "feed",
+            "flush",
+            "feed_l_day",
+            "flush_l_day",
+            "dry_out_h",
+            "min_depth_mm",
+            "max_depth_mm",
+            "peak_salinity_g_kg",
+            "crust_kg",
+            "mean_error_mm",
+            "max_deviation_mm",
+            "within_5pct_share",
+        ],
+    );
+    for (_, r, _) in runs {
+        for m in &r.months {
+            let Some(o) = m.operation.as_ref() else {
+                continue;
+            };
+            t.push(vec![
+                text(&r.name),
+                serde_json::json!(m.month),
+                num(m.l_m2_day, 4),
+                text(o.feed),
+                text(o.flush),
+                num(o.feed_l, 4),
+                num(o.flush_l, 4),
+                num(o.dry_out_h, 3),
+                num(o.min_depth_mm, 3),
+                num(o.max_depth_mm, 3),
+                num(o.peak_salinity_g_kg, 2),
+                num(o.crust_kg, 4),
+                num(o.depth.mean_error_mm, 4),
+                num(o.depth.max_deviation_mm, 4),
+                num(o.depth.within_5pct_share, 4),
+            ]);
+        }
+    }
+    t
 }
 
-fn write_sweep(
+fn profile_table(runs: &[(&Variant, VariantResult, u32)]) -> Table {
+    let mut t = Table::new(
+        "profile",
+        &[
+            "variant",
+            "month",
+            "solar_hour_h",
+            "depth_mm",
+            "salinity_g_kg",
+            "feed_l",
+            "flush_l",
+            "distillate_l",
+        ],
+    );
+    for (_, r, pm) in runs {
+        for h in r.hourly.iter().flatten().filter(|h| h.month == *pm) {
+            t.push(vec![
+                text(&r.name),
+                serde_json::json!(h.month),
+                num(h.solar_hour_h, 2),
+                num(h.depth_mm, 3),
+                num(h.salinity_g_kg, 2),
+                num(h.feed_l, 4),
+                num(h.flush_l, 4),
+                num(h.distillate_l, 5),
+            ]);
+        }
+    }
+    t
+}
+
+fn write_sweep_text(
     out: &mut dyn Write,
-    format: Format,
     title: &str,
-    v: &Variant,
-    points: &[DepthPoint],
-) -> anyhow::Result<()> {
-    match format {
-        Format::Text => {
-            writeln!(out, "{title}")?;
-            writeln!(out, "depth study of {} ({})", v.name, v.kind.name())?;
-            writeln!(
-                out,
-                "depth mm  L/m²/day  night  worst dry-out h/day (month)  peak g/kg  dry-out risk"
-            )?;
-            for p in points {
-                match &p.refused {
-                    Some(why) => writeln!(out, "{:>8.1}  refused: {why}", p.depth_mm)?,
-                    None => writeln!(
-                        out,
-                        "{:>8.1}  {:>8.2}  {:>4.0}%  {:>20.2} ({})  {:>9.1}  {}",
-                        p.depth_mm,
-                        p.mean_l_m2_day,
-                        100.0 * p.night_share,
-                        p.worst_dry_out_h,
-                        if p.worst_dry_out_h > 0.0 {
-                            month_name(p.worst_dry_out_month)
-                        } else {
-                            "-"
-                        },
-                        p.peak_salinity_g_kg,
-                        p.dry_out_risk
-                    )?,
-                }
+    studies: &[(&Variant, Vec<DepthPoint>)],
+) -> std::io::Result<()> {
+    writeln!(out, "{title}")?;
+    for (v, points) in studies {
+        writeln!(out)?;
+        writeln!(out, "depth study of {} ({})", v.name, v.kind.name())?;
+        writeln!(
+            out,
+            "depth mm  L/m²/day  night  worst dry-out h/day (month)  peak g/kg  dry-out risk"
+        )?;
+        for p in points {
+            match &p.refused {
+                Some(why) => writeln!(out, "{:>8.1}  refused: {why}", p.depth_mm)?,
+                None => writeln!(
+                    out,
+                    "{:>8.1}  {:>8.2}  {:>4.0}%  {:>20.2} ({})  {:>9.1}  {}",
+                    p.depth_mm,
+                    p.mean_l_m2_day,
+                    100.0 * p.night_share,
+                    p.worst_dry_out_h,
+                    if p.worst_dry_out_h > 0.0 {
+                        month_name(p.worst_dry_out_month)
+                    } else {
+                        "-"
+                    },
+                    p.peak_salinity_g_kg,
+                    p.dry_out_risk
+                )?,
             }
-        }
-        Format::Json => {
-            #[derive(Serialize)]
-            struct Out<'a> {
-                design: &'a str,
-                variant: &'a str,
-                points: &'a [DepthPoint],
-            }
-            serde_json::to_writer_pretty(
-                &mut *out,
-                &Out {
-                    design: title,
-                    variant: &v.name,
-                    points,
-                },
-            )?;
-            writeln!(out)?;
-        }
-        Format::Csv => {
-            let mut w = csv::Writer::from_writer(&mut *out);
-            w.write_record([
-                "variant",
-                "depth_mm",
-                "l_m2_day",
-                "night_share",
-                "worst_dry_out_h",
-                "worst_dry_out_month",
-                "peak_salinity_g_kg",
-                "dry_out_risk",
-                "refused",
-            ])?;
-            for p in points {
-                w.write_record([
-                    v.name.clone(),
-                    format!("{}", p.depth_mm),
-                    format!("{:.4}", p.mean_l_m2_day),
-                    format!("{:.4}", p.night_share),
-                    format!("{:.3}", p.worst_dry_out_h),
-                    p.worst_dry_out_month.to_string(),
-                    format!("{:.2}", p.peak_salinity_g_kg),
-                    p.dry_out_risk.to_owned(),
-                    p.refused.clone().unwrap_or_default(),
-                ])?;
-            }
-            w.flush()?;
         }
     }
     Ok(())
+}
+
+#[derive(Serialize)]
+struct SweepDoc<'a> {
+    design: &'a str,
+    variants: Vec<SweepOut<'a>>,
+}
+
+#[derive(Serialize)]
+struct SweepOut<'a> {
+    name: &'a str,
+    kind: &'static str,
+    points: &'a [DepthPoint],
+}
+
+fn sweep_table(studies: &[(&Variant, Vec<DepthPoint>)]) -> Table {
+    let mut t = Table::new(
+        "depths",
+        &[
+            "variant",
+            "depth_mm",
+            "l_m2_day",
+            "night_share",
+            "worst_dry_out_h",
+            "worst_dry_out_month",
+            "peak_salinity_g_kg",
+            "dry_out_risk",
+            "refused",
+        ],
+    );
+    for (v, points) in studies {
+        for p in points {
+            t.push(vec![
+                text(&v.name),
+                num(p.depth_mm, 6),
+                num(p.mean_l_m2_day, 4),
+                num(p.night_share, 4),
+                num(p.worst_dry_out_h, 3),
+                serde_json::json!(p.worst_dry_out_month),
+                num(p.peak_salinity_g_kg, 2),
+                text(p.dry_out_risk),
+                text(p.refused.clone().unwrap_or_default()),
+            ]);
+        }
+    }
+    t
 }
 
 /// Run `operate`.
@@ -373,15 +454,49 @@ pub fn run(args: &OperateArgs) -> anyhow::Result<()> {
             ),
         ));
     }
+    let ds = match &args.depth_sweep {
+        Some(spec) => {
+            Some(depths(spec, args.step).map_err(|m| bad_input(&loaded, "--depth-sweep", m))?)
+        }
+        None => None,
+    };
+    let specs: &[TableSpec] = if ds.is_some() { &SWEEP_TABLES } else { &TABLES };
+    let plan = args
+        .export
+        .plan(&loaded.source, args.format == Format::Csv, specs)?;
+    if plan == Plan::Listed {
+        return Ok(());
+    }
     let weather = stills::site_weather(&loaded)?;
     let title = loaded.design.project.title.as_str();
     let mut buf = Vec::new();
-    if let Some(spec) = &args.depth_sweep {
-        let ds = depths(spec, args.step).map_err(|m| bad_input(&loaded, "--depth-sweep", m))?;
+    if let Some(ds) = &ds {
         let opts = RunOptions::default();
+        let mut studies = Vec::new();
         for v in &modelled {
-            let points = operation::depth_sweep(&loaded, v, &weather, &ds, &opts)?;
-            write_sweep(&mut buf, args.format, title, v, &points)?;
+            let points = operation::depth_sweep(&loaded, v, &weather, ds, &opts)?;
+            studies.push((*v, points));
+        }
+        match args.format {
+            Format::Text => {
+                write_sweep_text(&mut buf, title, &studies)?;
+                stillbench::cautions::write_cautions(&mut buf)?;
+            }
+            Format::Json => stillbench::output::write_document(
+                &mut buf,
+                &SweepDoc {
+                    design: title,
+                    variants: studies
+                        .iter()
+                        .map(|(v, points)| SweepOut {
+                            name: &v.name,
+                            kind: v.kind.name(),
+                            points,
+                        })
+                        .collect(),
+                },
+            )?,
+            Format::Csv => return args.export.write_tables(&plan, &[sweep_table(&studies)]),
         }
     } else {
         let opts = RunOptions {
@@ -431,46 +546,20 @@ pub fn run(args: &OperateArgs) -> anyhow::Result<()> {
                     design: &'a str,
                     variants: Vec<VariantOut<'a>>,
                 }
-                serde_json::to_writer_pretty(
+                stillbench::output::write_document(
                     &mut buf,
                     &Doc {
                         design: title,
                         variants: out,
                     },
                 )?;
-                writeln!(buf)?;
             }
             Format::Csv => {
-                let mut w = csv::Writer::from_writer(&mut buf);
-                w.write_record([
-                    "variant",
-                    "month",
-                    "l_m2_day",
-                    "feed",
-                    "flush",
-                    "feed_l_day",
-                    "flush_l_day",
-                    "dry_out_h",
-                    "min_depth_mm",
-                    "max_depth_mm",
-                    "peak_salinity_g_kg",
-                    "crust_kg",
-                    "mean_error_mm",
-                    "max_deviation_mm",
-                    "within_5pct_share",
-                ])?;
-                for (_, r, _) in &runs {
-                    for m in &r.months {
-                        if let Some(row) = csv_row(r, m) {
-                            w.write_record(row)?;
-                        }
-                    }
-                }
-                w.flush()?;
+                return args
+                    .export
+                    .write_tables(&plan, &[months_table(&runs), profile_table(&runs)]);
             }
         }
     }
-    let mut out = std::io::stdout().lock();
-    out.write_all(&buf).context("writing to standard output")?;
-    Ok(())
+    args.export.write_document(&buf)
 }

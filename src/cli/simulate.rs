@@ -1,21 +1,22 @@
 //! `stillbench simulate [DESIGN]`: run every still variant over the site's weather and print
 //! monthly and annual yields.
 
-use std::io::Write;
 use std::path::PathBuf;
 
 use anyhow::Context;
 use stillbench::design::{self, LoadedDesign};
 use stillbench::stills::{self, RunOptions, render};
 
+use super::export::{ExportArgs, Plan};
+
 /// Output formats of `simulate`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
 pub enum Format {
     /// A readable monthly table per variant.
     Text,
-    /// The JSON contract for scripts (see docs/simulate-output.md).
+    /// One JSON document for scripts (docs/output.md).
     Json,
-    /// One row per variant and month.
+    /// One table: monthly rows (the default) or, with `--table hourly`, hourly rows.
     Csv,
 }
 
@@ -27,6 +28,8 @@ pub enum Format {
   stillbench simulate designs/demo-coast.toml --variant glass-basin --hourly
   stillbench simulate designs/demo-coast.toml --format json --out results.json
   stillbench simulate designs/demo-coast.toml --format csv --out results.csv --force
+  stillbench simulate designs/demo-coast.toml --format csv --table hourly
+  stillbench simulate designs/demo-coast.toml --format csv --hourly --table all --out results/
 
 How it works: each variant becomes a small thermal network (cover, brine, liner, walls)
 that is stepped through the weather with a heat-and-mass-transfer solver. With monthly
@@ -49,12 +52,9 @@ pub struct SimulateArgs {
     /// each month, or every record of a weather file).
     #[arg(long)]
     pub hourly: bool,
-    /// Write to this file instead of standard output (written whole, then renamed into place).
-    #[arg(long, value_name = "FILE")]
-    pub out: Option<PathBuf>,
-    /// Allow --out to replace an existing file.
-    #[arg(long)]
-    pub force: bool,
+    /// Where the output goes, and which CSV table.
+    #[command(flatten)]
+    pub export: ExportArgs,
 }
 
 /// Run `simulate`.
@@ -65,15 +65,11 @@ pub fn run(args: &SimulateArgs) -> anyhow::Result<()> {
     }
     .map_err(stillbench::Error::Design)?;
     // Refuse before simulating, not after: the answer does not depend on the results.
-    if let Some(out) = &args.out
-        && out.exists()
-        && !args.force
-    {
-        return Err(stillbench::Error::Refused {
-            path: out.display().to_string(),
-            reason: "it already exists; pass --force to replace it".into(),
-        }
-        .into());
+    let plan = args
+        .export
+        .plan(&loaded.source, args.format == Format::Csv, &render::TABLES)?;
+    if plan == Plan::Listed {
+        return Ok(());
     }
     let variants: Vec<_> = loaded
         .design
@@ -104,7 +100,8 @@ pub fn run(args: &SimulateArgs) -> anyhow::Result<()> {
     }
     let weather = stills::site_weather(&loaded)?;
     let opts = RunOptions {
-        hourly: args.hourly,
+        // The hourly table asked for by name needs the hourly records.
+        hourly: args.hourly || ExportArgs::wants(&plan, "hourly"),
         ..RunOptions::default()
     };
     let mut results = Vec::new();
@@ -145,18 +142,8 @@ pub fn run(args: &SimulateArgs) -> anyhow::Result<()> {
         Format::Text => render::write_text(&mut buf, title, &results)
             .and_then(|()| stillbench::cautions::write_cautions(&mut buf)),
         Format::Json => render::write_json(&mut buf, title, &results),
-        Format::Csv => render::write_csv(&mut buf, &results),
+        Format::Csv => return args.export.write_tables(&plan, &render::tables(&results)),
     }
     .context("formatting the results")?;
-    match &args.out {
-        Some(path) => {
-            stillbench::output::write_atomic(path, args.force, |w| w.write_all(&buf))?;
-            Ok(())
-        }
-        None => {
-            let mut out = std::io::stdout().lock();
-            out.write_all(&buf).context("writing to standard output")?;
-            Ok(())
-        }
-    }
+    args.export.write_document(&buf)
 }

@@ -1,9 +1,12 @@
-//! Writing simulation results as text, JSON (the documented contract in
-//! `docs/simulate-output.md`) or CSV. Every writer takes `impl Write`.
+//! Writing simulation results as text, JSON or CSV tables (the contract in `docs/output.md`).
+//! Every writer takes `impl Write`.
 
 use std::io::{self, Write};
 
 use serde::Serialize;
+use serde_json::json;
+
+use crate::output::table::{Table, TableSpec, num, text};
 
 use super::VariantResult;
 
@@ -104,73 +107,87 @@ struct JsonOut<'a> {
     variants: &'a [VariantResult],
 }
 
-/// The JSON contract: `{"design": …, "variants": [VariantResult …]}`.
+/// The JSON contract (docs/output.md): `{"schema_version", "design", "variants":
+/// [VariantResult …]}`.
 pub fn write_json(
     out: &mut impl Write,
     design_title: &str,
     results: &[VariantResult],
 ) -> io::Result<()> {
-    serde_json::to_writer_pretty(
-        &mut *out,
+    crate::output::write_document(
+        out,
         &JsonOut {
             design: design_title,
             variants: results,
         },
     )
-    .map_err(io::Error::other)?;
-    writeln!(out)
 }
 
-/// One CSV row per variant and month; with hourly records, a second table follows after a
-/// blank line, one row per variant and hour.
-pub fn write_csv(out: &mut impl Write, results: &[VariantResult]) -> io::Result<()> {
-    let mut w = csv::Writer::from_writer(&mut *out);
-    w.write_record([
-        "variant",
-        "kind",
-        "month",
-        "l_m2_day",
-        "l_day",
-        "insolation_kwh_m2_day",
-        "cover_insolation_kwh_m2_day",
-        "poa_kwh_m2_day",
-        "efficiency",
-        "ceiling_l_m2_day",
-        "night_share",
-        "max_brine_c",
-        "max_cover_c",
-        "days_to_periodic",
-        "cycle_days",
-        "residual_fraction",
-    ])?;
+/// The CSV tables of `simulate`: `monthly` (the default) and `hourly`.
+pub const TABLES: [TableSpec; 2] = [
+    TableSpec {
+        name: "monthly",
+        about: "one row per variant and month",
+    },
+    TableSpec {
+        name: "hourly",
+        about: "one row per variant and hourly record (with --hourly)",
+    },
+];
+
+/// The monthly table: one row per variant and month.
+pub fn monthly_table(results: &[VariantResult]) -> Table {
+    let mut t = Table::new(
+        "monthly",
+        &[
+            "variant",
+            "kind",
+            "month",
+            "l_m2_day",
+            "l_day",
+            "insolation_kwh_m2_day",
+            "cover_insolation_kwh_m2_day",
+            "poa_kwh_m2_day",
+            "efficiency",
+            "ceiling_l_m2_day",
+            "night_share",
+            "max_brine_c",
+            "max_cover_c",
+            "days_to_periodic",
+            "cycle_days",
+            "residual_fraction",
+        ],
+    );
     for r in results {
         for m in &r.months {
-            w.write_record([
-                r.name.clone(),
-                r.kind.clone(),
-                m.month.to_string(),
-                format!("{:.4}", m.l_m2_day),
-                format!("{:.4}", m.l_day),
-                format!("{:.4}", m.insolation_kwh_m2_day),
-                format!("{:.4}", m.cover_insolation_kwh_m2_day),
-                format!("{:.4}", m.poa_kwh_m2_day),
-                format!("{:.5}", m.efficiency),
-                format!("{:.4}", m.ceiling_l_m2_day),
-                format!("{:.4}", m.night_share),
-                format!("{:.2}", m.max_brine_c),
-                format!("{:.2}", m.max_cover_c),
-                m.days_to_periodic.to_string(),
-                m.cycle_days.to_string(),
-                format!("{:.3e}", m.energy.residual_fraction),
-            ])?;
+            t.push(vec![
+                text(&r.name),
+                text(&r.kind),
+                json!(m.month),
+                num(m.l_m2_day, 4),
+                num(m.l_day, 4),
+                num(m.insolation_kwh_m2_day, 4),
+                num(m.cover_insolation_kwh_m2_day, 4),
+                num(m.poa_kwh_m2_day, 4),
+                num(m.efficiency, 5),
+                num(m.ceiling_l_m2_day, 4),
+                num(m.night_share, 4),
+                num(m.max_brine_c, 2),
+                num(m.max_cover_c, 2),
+                json!(m.days_to_periodic),
+                json!(m.cycle_days),
+                text(format!("{:.3e}", m.energy.residual_fraction)),
+            ]);
         }
     }
-    w.flush()?;
-    drop(w);
-    if results.iter().any(|r| r.hourly.is_some()) {
-        writeln!(out)?;
-        let mut w = csv::Writer::from_writer(&mut *out);
-        w.write_record([
+    t
+}
+
+/// The hourly table: one row per variant and hourly record (empty without hourly records).
+pub fn hourly_table(results: &[VariantResult]) -> Table {
+    let mut t = Table::new(
+        "hourly",
+        &[
             "variant",
             "month",
             "day_of_year",
@@ -190,33 +207,37 @@ pub fn write_csv(out: &mut impl Write, results: &[VariantResult]) -> io::Result<
             "salinity_g_kg",
             "feed_l",
             "flush_l",
-        ])?;
-        for r in results {
-            for h in r.hourly.iter().flatten() {
-                w.write_record([
-                    r.name.clone(),
-                    h.month.to_string(),
-                    h.day_of_year.to_string(),
-                    format!("{:.2}", h.solar_hour_h),
-                    format!("{:.2}", h.t_air_c),
-                    format!("{:.2}", h.t_cover_c),
-                    format!("{:.2}", h.t_brine_c),
-                    format!("{:.2}", h.t_liner_c),
-                    format!("{:.1}", h.entering_w_m2),
-                    format!("{:.1}", h.absorbed_w),
-                    format!("{:.1}", h.cover_to_air_w),
-                    format!("{:.1}", h.cover_to_sky_w),
-                    format!("{:.1}", h.base_w),
-                    format!("{:.1}", h.sides_w),
-                    format!("{:.5}", h.distillate_l),
-                    format!("{:.3}", h.depth_mm),
-                    format!("{:.2}", h.salinity_g_kg),
-                    format!("{:.4}", h.feed_l),
-                    format!("{:.4}", h.flush_l),
-                ])?;
-            }
+        ],
+    );
+    for r in results {
+        for h in r.hourly.iter().flatten() {
+            t.push(vec![
+                text(&r.name),
+                json!(h.month),
+                json!(h.day_of_year),
+                num(h.solar_hour_h, 2),
+                num(h.t_air_c, 2),
+                num(h.t_cover_c, 2),
+                num(h.t_brine_c, 2),
+                num(h.t_liner_c, 2),
+                num(h.entering_w_m2, 1),
+                num(h.absorbed_w, 1),
+                num(h.cover_to_air_w, 1),
+                num(h.cover_to_sky_w, 1),
+                num(h.base_w, 1),
+                num(h.sides_w, 1),
+                num(h.distillate_l, 5),
+                num(h.depth_mm, 3),
+                num(h.salinity_g_kg, 2),
+                num(h.feed_l, 4),
+                num(h.flush_l, 4),
+            ]);
         }
-        w.flush()?;
     }
-    Ok(())
+    t
+}
+
+/// Every table of [`TABLES`], in that order.
+pub fn tables(results: &[VariantResult]) -> Vec<Table> {
+    vec![monthly_table(results), hourly_table(results)]
 }

@@ -13,6 +13,7 @@ mod economics;
 mod economics_operator;
 mod network;
 mod operation;
+mod output_contract;
 mod physics_sun;
 mod physics_transfer;
 mod physics_water;

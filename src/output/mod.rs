@@ -1,6 +1,16 @@
 //! Writing files so that nothing is lost: a file is written to a temporary name beside its
 //! target and renamed into place only when complete, and an existing file is replaced only
 //! when the caller says so.
+//!
+//! The output contract (docs/output.md) lives here too: [`json`] writes every JSON document
+//! (one object with `schema_version`), [`table`] every CSV table (one rectangular table, the
+//! csv crate).
+
+pub mod json;
+pub mod table;
+
+pub use json::{SCHEMA_VERSION, write_document};
+pub use table::{Table, TableChoice, TableSpec};
 
 use std::fs;
 use std::io::{self, BufWriter, Write};
