@@ -59,7 +59,8 @@ fn write_weather_year(path: &Path) {
 }
 
 /// The second design: the southern demo's variants, counted in ARS (a copy of the demo
-/// materials library with its currency changed; the prices stay invented), with the climate
+/// materials library with its currency changed, an invented exchange rate for the ranking's
+/// money references and invented local labour rates), with the climate
 /// from [`write_weather_year`].
 fn weather_design(dir: &Path) -> PathBuf {
     let lib = std::fs::read_to_string(root().join("designs/materials/demo-market.toml"))
@@ -78,7 +79,13 @@ fn weather_design(dir: &Path) -> PathBuf {
         &demo[end..]
     )
     .replace("materials/demo-market.toml", "market-ars.toml")
-    .replace("currency = \"USD\"", "currency = \"ARS\"");
+    .replace(
+        "currency = \"USD\"",
+        "currency = \"ARS\"\n\n[project.money_scales]\nper_usd = 1000\n\
+         rate_date = \"2026-11-30\"\nsource = \"invented test rate\"",
+    );
+    // Local labour rates in ARS (invented), required for a design not counting in USD.
+    let text = format!("{text}\n[costs]\nlabour_rate_per_h = 2500\noperator_rate_per_h = 1200\n");
     let path = dir.join("weather-south.toml");
     std::fs::write(&path, text).unwrap();
     path
