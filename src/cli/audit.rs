@@ -108,8 +108,20 @@ pub fn run(args: &AuditArgs) -> anyhow::Result<()> {
             }
         }
         Format::Json => {
-            serde_json::to_writer_pretty(&mut out, &a).context("writing JSON")?;
-            writeln!(out)?;
+            #[derive(serde::Serialize)]
+            struct Doc<'a> {
+                site: &'a str,
+                #[serde(flatten)]
+                audit: &'a stillbench::compare::Audit,
+            }
+            stillbench::output::write_document(
+                &mut out,
+                &Doc {
+                    site: &loaded.design.site.name,
+                    audit: &a,
+                },
+            )
+            .context("writing JSON")?;
         }
     }
     Ok(())

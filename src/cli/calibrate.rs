@@ -162,9 +162,7 @@ pub fn run(args: &CalibrateArgs) -> anyhow::Result<()> {
             }
         }
         Format::Json => {
-            serde_json::to_writer_pretty(&mut stdout, &report).context("writing JSON")?;
-            use std::io::Write;
-            writeln!(stdout)?;
+            stillbench::output::write_document(&mut stdout, &report).context("writing JSON")?;
         }
     }
     Ok(())

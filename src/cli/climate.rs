@@ -6,9 +6,11 @@ use clap::{Args, ValueEnum};
 use std::io::Write;
 use std::path::PathBuf;
 use stillbench::climate::export::{
-    monthly_table, render_monthly_table, write_hourly_csv, write_hourly_json,
+    TABLES, hourly_table, monthly_csv_table, monthly_table, render_monthly_table, write_json,
 };
 use stillbench::climate::{ClimateSource, Plane, SiteLocation, SkyModel, site_weather};
+
+use super::export::{ExportArgs, Plan};
 
 /// Arguments of `stillbench climate`.
 #[derive(Debug, Args)]
@@ -16,26 +18,36 @@ use stillbench::climate::{ClimateSource, Plane, SiteLocation, SkyModel, site_wea
   stillbench climate designs/demo-coast.toml
       monthly table: irradiation on the horizontal and on every cover plane, temperatures, wind
   stillbench climate designs/demo-coast.toml --format csv --out coast-hourly.csv
-      also write every hour of the average days (or of the weather file) as CSV")]
+      every hour of the average days (or of the weather file), with the irradiance on every
+      cover plane, as CSV (--table monthly: the monthly table as CSV)
+  stillbench climate designs/demo-coast.toml --format json
+      one JSON document with both: the monthly table and every hour")]
 pub struct ClimateArgs {
     /// The design file (TOML). Without it, the built-in demo design.
     pub design: Option<PathBuf>,
-    /// Export the hourly series in this format (to standard output, or to --out).
+    /// Export format (without it, the monthly table as text).
     #[arg(long, value_enum)]
     pub format: Option<ExportFormat>,
-    /// Write the hourly export to this file (atomically) instead of standard output.
-    #[arg(long, requires = "format")]
-    pub out: Option<PathBuf>,
-    /// Replace an existing --out file.
-    #[arg(long)]
-    pub force: bool,
+    /// Where the output goes, and which CSV table. With --out and a format, the monthly
+    /// table is also printed.
+    #[command(flatten)]
+    pub export: ExportArgs,
 }
 
 /// Run `stillbench climate`: read the design, resolve its site, print and export.
 pub fn run(args: &ClimateArgs) -> anyhow::Result<()> {
     let loaded = super::load(args.design.as_deref())?;
+    let plan = args.export.plan(
+        &loaded.source,
+        args.format == Some(ExportFormat::Csv),
+        &TABLES,
+    )?;
+    if plan == Plan::Listed {
+        return Ok(());
+    }
     let design = &loaded.design;
     let inputs = ClimateInputs {
+        site_name: design.site.name.clone(),
         site: design.site.location(),
         source: design.site.climate_source(),
         planes: design
@@ -45,23 +57,60 @@ pub fn run(args: &ClimateArgs) -> anyhow::Result<()> {
             .collect(),
         sky_model: SkyModel::default(),
     };
-    let stdout = std::io::stdout();
-    let stderr = std::io::stderr();
-    run_with(args, &inputs, &mut stdout.lock(), &mut stderr.lock())
+    let weather = site_weather(&inputs.site, &inputs.source).map_err(stillbench::Error::from)?;
+    for w in &weather.warnings {
+        eprintln!("warning: {w}");
+    }
+    let planes: Vec<Plane> = inputs.planes.iter().map(|(_, p)| *p).collect();
+    let names: Vec<String> = inputs.planes.iter().map(|(n, _)| n.clone()).collect();
+    let rows = monthly_table(&weather.series, &planes, inputs.sky_model);
+    let mut text = Vec::new();
+    render_monthly_table(&mut text, &rows, &names)?;
+    match args.format {
+        None => args.export.write_document(&text),
+        Some(format) => {
+            if args.export.out.is_some() {
+                let mut out = std::io::stdout().lock();
+                out.write_all(&text)?;
+            }
+            match format {
+                ExportFormat::Csv => args.export.write_tables(
+                    &plan,
+                    &[
+                        hourly_table(&weather.series, &inputs.planes, inputs.sky_model),
+                        monthly_csv_table(&rows, &names),
+                    ],
+                ),
+                ExportFormat::Json => {
+                    let mut buf = Vec::new();
+                    write_json(
+                        &mut buf,
+                        &inputs.site_name,
+                        &weather.series,
+                        &inputs.planes,
+                        inputs.sky_model,
+                    )?;
+                    args.export.write_document(&buf)
+                }
+            }
+        }
+    }
 }
 
-/// Hourly export formats.
+/// Export formats.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum ExportFormat {
-    /// Comma-separated values, one row per record.
+    /// One CSV table: `hourly` (a row per record, the default) or `monthly` (`--table`).
     Csv,
-    /// A JSON array of records.
+    /// One JSON document: the monthly table and every hourly record.
     Json,
 }
 
 /// What the design says about the site's climate, resolved into library types.
 #[derive(Debug, Clone)]
 pub struct ClimateInputs {
+    /// The site's name.
+    pub site_name: String,
     /// The site.
     pub site: SiteLocation,
     /// Monthly means or a weather file.
@@ -70,44 +119,4 @@ pub struct ClimateInputs {
     pub planes: Vec<(String, Plane)>,
     /// Sky model for the transposition.
     pub sky_model: SkyModel,
-}
-
-/// Print the monthly table (and warnings) to `out`, and the hourly export where asked.
-pub fn run_with(
-    args: &ClimateArgs,
-    inputs: &ClimateInputs,
-    out: &mut impl Write,
-    err: &mut impl Write,
-) -> anyhow::Result<()> {
-    let weather = site_weather(&inputs.site, &inputs.source).map_err(stillbench::Error::from)?;
-    for w in &weather.warnings {
-        writeln!(err, "warning: {w}")?;
-    }
-    let planes: Vec<Plane> = inputs.planes.iter().map(|(_, p)| *p).collect();
-    let names: Vec<String> = inputs.planes.iter().map(|(n, _)| n.clone()).collect();
-    let rows = monthly_table(&weather.series, &planes, inputs.sky_model);
-    let Some(format) = args.format else {
-        render_monthly_table(out, &rows, &names)?;
-        return Ok(());
-    };
-    let write_export = |w: &mut dyn Write| -> std::io::Result<()> {
-        match format {
-            ExportFormat::Csv => {
-                write_hourly_csv(w, &weather.series, &inputs.planes, inputs.sky_model)
-            }
-            ExportFormat::Json => write_hourly_json(w, &weather.series),
-        }
-    };
-    match &args.out {
-        Some(path) => {
-            render_monthly_table(out, &rows, &names)?;
-            stillbench::output::write_atomic(path, args.force, write_export)?;
-            writeln!(err, "wrote {}", path.display())?;
-        }
-        None => {
-            write_export(out)?;
-            out.flush()?;
-        }
-    }
-    Ok(())
 }

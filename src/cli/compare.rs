@@ -5,10 +5,12 @@
 use std::io::Write;
 use std::path::PathBuf;
 
-use anyhow::Context;
 use stillbench::compare::{self, Criterion, DesignEvaluation, Ranked, Scales, Weights};
 use stillbench::design::{DesignErrors, DesignIssue};
+use stillbench::output::table::{Table, TableChoice, TableSpec, full, text};
 use stillbench::stills;
+
+use super::export::{ExportArgs, Plan};
 
 /// Output formats.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
@@ -17,7 +19,8 @@ pub enum Format {
     Text,
     /// JSON: weights, scales, the ranking with every figure, the front, skipped variants.
     Json,
-    /// CSV: one row per ranked variant.
+    /// CSV: one table — `ranking` (a row per ranked variant, the default) or, with
+    /// --samples, `uncertainty` (a row per variant; `--table`).
     Csv,
 }
 
@@ -67,7 +70,22 @@ pub struct CompareArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,
+    /// Where the output goes, and which CSV table.
+    #[command(flatten)]
+    pub export: ExportArgs,
 }
+
+/// The CSV tables of `compare`.
+pub const TABLES: [TableSpec; 2] = [
+    TableSpec {
+        name: "ranking",
+        about: "one row per ranked variant: score, the five criteria, Pareto front, explanation",
+    },
+    TableSpec {
+        name: "uncertainty",
+        about: "one row per variant: P10/P50/P90 of the yield (with --samples)",
+    },
+];
 
 fn bad_option(file: &std::path::Path, option: &str, message: String) -> anyhow::Error {
     stillbench::Error::Design(DesignErrors(vec![DesignIssue {
@@ -169,6 +187,19 @@ pub fn report(
 /// Run `compare`.
 pub fn run(args: &CompareArgs) -> anyhow::Result<()> {
     let loaded = super::load(args.design.as_deref())?;
+    let plan = args
+        .export
+        .plan(&loaded.source, args.format == Format::Csv, &TABLES)?;
+    if plan == Plan::Listed {
+        return Ok(());
+    }
+    if args.samples == 0 && plan == Plan::Csv(TableChoice::One("uncertainty")) {
+        return Err(bad_option(
+            &loaded.source,
+            "--table",
+            "the `uncertainty` table needs the Monte Carlo: add `--samples N`".into(),
+        ));
+    }
     let (scales, money_basis) = scales_for(
         &loaded.source,
         args.scales.as_deref(),
@@ -195,19 +226,16 @@ pub fn run(args: &CompareArgs) -> anyhow::Result<()> {
         };
         rep.uncertainty = Some(super::uncertainty::run_with_bar(&loaded, &opts)?);
     }
-    let mut out = std::io::stdout().lock();
+    let mut buf = Vec::new();
     match args.format {
         Format::Text => {
-            write_text(&mut out, &rep)?;
-            stillbench::cautions::write_cautions(&mut out)?;
+            write_text(&mut buf, &rep)?;
+            stillbench::cautions::write_cautions(&mut buf)?;
         }
-        Format::Json => {
-            serde_json::to_writer_pretty(&mut out, &rep).context("writing JSON")?;
-            writeln!(out)?;
-        }
-        Format::Csv => write_csv(&mut out, &rep)?,
+        Format::Json => stillbench::output::write_document(&mut buf, &rep)?,
+        Format::Csv => return args.export.write_tables(&plan, &tables(&rep)),
     }
-    Ok(())
+    args.export.write_document(&buf)
 }
 
 /// Write the report as text.
@@ -291,39 +319,44 @@ pub fn write_text(out: &mut impl Write, rep: &Report) -> std::io::Result<()> {
     Ok(())
 }
 
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
-}
-
-/// Write the ranking as CSV, one row per ranked variant.
-pub fn write_csv(out: &mut impl Write, rep: &Report) -> std::io::Result<()> {
-    writeln!(
-        out,
-        "rank,variant,score,annual_l_m2,worst_month_l_m2_day,cost_per_l,capital_per_l_day,\
-         complexity_points,currency,pareto,not_local,explanation"
-    )?;
+/// The tables of [`TABLES`]: the ranking, and the Monte Carlo percentiles (no rows without
+/// --samples).
+pub fn tables(rep: &Report) -> Vec<Table> {
+    let mut t = Table::new(
+        "ranking",
+        &[
+            "rank",
+            "variant",
+            "score",
+            "annual_l_m2",
+            "worst_month_l_m2_day",
+            "cost_per_l",
+            "capital_per_l_day",
+            "complexity_points",
+            "currency",
+            "pareto",
+            "not_local",
+            "explanation",
+        ],
+    );
     for r in &rep.ranking {
         let v = &r.values;
-        writeln!(
-            out,
-            "{},{},{},{},{},{},{},{},{},{},{},{}",
-            r.rank,
-            csv_field(&r.name),
-            r.score,
-            v.annual_l_m2,
-            v.worst_month_l_m2_day,
-            v.cost_per_l,
-            v.capital_per_l_day,
-            v.complexity_points,
-            csv_field(&rep.currency),
-            r.pareto,
-            csv_field(&r.not_local.join(";")),
-            csv_field(&r.explanation)
-        )?;
+        t.push(vec![
+            serde_json::json!(r.rank),
+            text(&r.name),
+            full(r.score),
+            full(v.annual_l_m2),
+            full(v.worst_month_l_m2_day),
+            full(v.cost_per_l),
+            full(v.capital_per_l_day),
+            full(v.complexity_points),
+            text(&rep.currency),
+            serde_json::json!(r.pareto),
+            text(r.not_local.join(";")),
+            text(&r.explanation),
+        ]);
     }
-    Ok(())
+    let unc =
+        stillbench::compare::render::percentiles_table(rep.uncertainty.as_ref(), "uncertainty");
+    vec![t, unc]
 }

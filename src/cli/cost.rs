@@ -4,19 +4,23 @@
 use std::io::Write;
 use std::path::PathBuf;
 
-use anyhow::Context;
+use serde_json::json;
 use stillbench::design::{DesignErrors, DesignIssue, LoadedDesign, Variant};
 use stillbench::economics::{self, SubstituteRun, VariantCost, YieldEstimate};
+use stillbench::output::table::{Table, TableSpec, full, opt_full, text};
 use stillbench::stills;
+
+use super::export::{ExportArgs, Plan};
 
 /// Output formats.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
 pub enum Format {
     /// Plain text for reading.
     Text,
-    /// JSON, one object per variant.
+    /// One JSON document: every variant's cost (and its substitutes).
     Json,
-    /// CSV of the bill of materials.
+    /// CSV: one table — `bom` (the bill of materials, the default), `summary`, `cuts` or
+    /// `substitutes` (`--table`).
     Csv,
 }
 
@@ -39,7 +43,30 @@ pub struct CostArgs {
     /// Re-cost each variant with every locally sold substitute listed in [costs.substitutes].
     #[arg(long)]
     pub substitutes: bool,
+    /// Where the output goes, and which CSV table.
+    #[command(flatten)]
+    pub export: ExportArgs,
 }
+
+/// The CSV tables of `cost`.
+pub const TABLES: [TableSpec; 4] = [
+    TableSpec {
+        name: "bom",
+        about: "one row per variant and bill-of-materials line",
+    },
+    TableSpec {
+        name: "summary",
+        about: "one row per variant: capital, running cost, life, cost per litre, complexity",
+    },
+    TableSpec {
+        name: "cuts",
+        about: "one row per variant and cut part: stock bought, used and wasted",
+    },
+    TableSpec {
+        name: "substitutes",
+        about: "one row per variant and locally sold substitute (with --substitutes)",
+    },
+];
 
 /// The yield of a variant from the simulation, or `None` (with a note on standard error) for
 /// a kind not modelled yet or a run that could not give a trustworthy result: no yield is ever
@@ -68,12 +95,19 @@ fn simulated_yield(
 pub fn run(args: &CostArgs) -> anyhow::Result<()> {
     let loaded = super::load(args.design.as_deref())?;
     let indices = select(&loaded, args.variant.as_deref())?;
+    let plan = args
+        .export
+        .plan(&loaded.source, args.format == Format::Csv, &TABLES)?;
+    if plan == Plan::Listed {
+        return Ok(());
+    }
+    // The substitutes table asked for by name needs the substitutes.
+    let with_substitutes = args.substitutes || ExportArgs::wants(&plan, "substitutes");
     let weather = stills::site_weather(&loaded)?;
     let yield_of = |v: &Variant| simulated_yield(&loaded, &weather, v);
-    let mut out = std::io::stdout().lock();
     let mut reports = Vec::new();
     for i in indices {
-        if args.substitutes {
+        if with_substitutes {
             let (base, runs) =
                 economics::substitutes(&loaded, i, &yield_of).map_err(stillbench::Error::Design)?;
             reports.push((base, runs));
@@ -84,24 +118,45 @@ pub fn run(args: &CostArgs) -> anyhow::Result<()> {
             reports.push((r, Vec::new()));
         }
     }
+    let mut buf = Vec::new();
     match args.format {
         Format::Text => {
             for (r, subs) in &reports {
-                write_text(&mut out, r, subs, args.substitutes)?;
+                write_text(&mut buf, r, subs, with_substitutes)?;
             }
-            stillbench::cautions::write_cautions(&mut out)?;
+            stillbench::cautions::write_cautions(&mut buf)?;
         }
         Format::Json => {
-            let v: Vec<serde_json::Value> = reports
-                .iter()
-                .map(|(r, subs)| serde_json::json!({ "cost": r, "substitutes": subs }))
-                .collect();
-            serde_json::to_writer_pretty(&mut out, &v).context("writing JSON")?;
-            writeln!(out)?;
+            #[derive(serde::Serialize)]
+            struct VariantOut<'a> {
+                cost: &'a VariantCost,
+                /// `null` without --substitutes, so "none listed" and "not asked" differ.
+                substitutes: Option<&'a [SubstituteRun]>,
+            }
+            #[derive(serde::Serialize)]
+            struct Doc<'a> {
+                design: &'a str,
+                currency: &'a str,
+                variants: Vec<VariantOut<'a>>,
+            }
+            stillbench::output::write_document(
+                &mut buf,
+                &Doc {
+                    design: &loaded.design.project.title,
+                    currency: &loaded.design.project.currency,
+                    variants: reports
+                        .iter()
+                        .map(|(r, subs)| VariantOut {
+                            cost: r,
+                            substitutes: with_substitutes.then_some(subs.as_slice()),
+                        })
+                        .collect(),
+                },
+            )?;
         }
-        Format::Csv => write_csv(&mut out, &reports)?,
+        Format::Csv => return args.export.write_tables(&plan, &tables(&reports)),
     }
-    Ok(())
+    args.export.write_document(&buf)
 }
 
 fn select(loaded: &LoadedDesign, name: Option<&str>) -> anyhow::Result<Vec<usize>> {
@@ -363,41 +418,182 @@ pub fn write_text(
     Ok(())
 }
 
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
-}
-
-fn write_csv(
-    out: &mut impl Write,
-    reports: &[(VariantCost, Vec<SubstituteRun>)],
-) -> anyhow::Result<()> {
-    writeln!(
-        out,
-        "variant,part,item,formula,geometric,geometric_unit,quantity,unit,unit_price,cost,local,lifetime_years"
-    )?;
-    for (r, _) in reports {
+/// Every table of [`TABLES`], in that order.
+fn tables(reports: &[(VariantCost, Vec<SubstituteRun>)]) -> Vec<Table> {
+    let mut bom = Table::new(
+        "bom",
+        &[
+            "variant",
+            "part",
+            "item",
+            "formula",
+            "geometric",
+            "geometric_unit",
+            "quantity",
+            "unit",
+            "unit_price",
+            "cost",
+            "currency",
+            "local",
+            "lifetime_years",
+        ],
+    );
+    let mut summary = Table::new(
+        "summary",
+        &[
+            "variant",
+            "kind",
+            "footprint_m2",
+            "cover_area_m2",
+            "currency",
+            "materials",
+            "labour_h",
+            "labour_cost",
+            "capital",
+            "capital_per_m2",
+            "replacements_present_worth",
+            "operator_h_per_year",
+            "operator_cost_per_year",
+            "upkeep_per_year",
+            "running_per_year",
+            "salvage",
+            "life_years",
+            "discount_rate",
+            "crf",
+            "sff",
+            "annualised_per_year",
+            "yield_loss_per_year",
+            "first_year_l",
+            "levelised_l_year",
+            "cost_per_l",
+            "cost_per_person_year",
+            "complexity_points",
+            "all_local",
+            "yield_note",
+        ],
+    );
+    let mut cuts = Table::new(
+        "cuts",
+        &[
+            "variant", "part", "item", "stock", "pieces", "used", "bought", "waste", "unit",
+        ],
+    );
+    let mut substitutes = Table::new(
+        "substitutes",
+        &[
+            "variant",
+            "role",
+            "replaces",
+            "item",
+            "currency",
+            "capital_change",
+            "annualised_change_per_year",
+            "replaced_lifetime_years",
+            "lifetime_years",
+            "cover_transmittance_change",
+            "yield_change_l_year",
+            "cost_per_l_change",
+            "food_safety",
+            "note",
+        ],
+    );
+    for (r, subs) in reports {
+        let c = &r.cost;
         for l in &r.bom.lines {
             let (g, gu) = l.amount.value_unit();
-            writeln!(
-                out,
-                "{},{},{},{},{g},{},{},{},{},{},{},{}",
-                csv_field(&r.variant),
-                csv_field(&l.part),
-                csv_field(&l.item),
-                csv_field(&l.formula),
-                csv_field(gu),
-                l.quantity,
-                l.unit,
-                l.unit_price,
-                l.cost,
-                l.local,
-                l.lifetime_years
-            )?;
+            bom.push(vec![
+                text(&r.variant),
+                text(&l.part),
+                text(&l.item),
+                text(&l.formula),
+                full(g),
+                text(gu),
+                full(l.quantity),
+                text(l.unit.to_string()),
+                full(l.unit_price),
+                full(l.cost),
+                text(&c.currency),
+                json!(l.local),
+                json!(l.lifetime_years),
+            ]);
+        }
+        summary.push(vec![
+            text(&r.variant),
+            text(r.kind),
+            full(r.footprint_m2),
+            full(r.cover_area_m2),
+            text(&c.currency),
+            full(c.materials),
+            full(c.labour_h),
+            full(c.labour_cost),
+            full(c.capital),
+            full(c.capital_per_m2),
+            full(c.replacements_present_worth),
+            full(c.operator_h_per_year),
+            full(c.operator_cost_per_year),
+            full(c.upkeep_per_year),
+            full(c.running_per_year),
+            full(c.salvage),
+            full(c.life_years),
+            full(c.discount_rate),
+            full(c.crf),
+            full(c.sff),
+            full(c.annualised),
+            full(c.yield_loss_per_year),
+            opt_full(c.first_year_litres),
+            opt_full(c.levelised_litres),
+            opt_full(c.cost_per_litre),
+            opt_full(c.cost_per_person_year),
+            full(r.complexity.score),
+            json!(r.all_local),
+            text(c.yield_note.clone().unwrap_or_default()),
+        ]);
+        for cut in &r.bom.cuts {
+            if let Some(p) = &cut.sheets {
+                cuts.push(vec![
+                    text(&r.variant),
+                    text(&cut.part),
+                    text(&cut.item),
+                    text("sheet"),
+                    json!(p.sheets.len()),
+                    full(p.parts_m2),
+                    full(p.stock_m2),
+                    full(p.waste_m2),
+                    text("m2"),
+                ]);
+            }
+            if let Some(b) = &cut.bars {
+                cuts.push(vec![
+                    text(&r.variant),
+                    text(&cut.part),
+                    text(&cut.item),
+                    text("bar"),
+                    json!(b.bars.len()),
+                    full(b.pieces_m),
+                    full(b.stock_m),
+                    full(b.waste_m),
+                    text("m"),
+                ]);
+            }
+        }
+        for s in subs {
+            substitutes.push(vec![
+                text(&r.variant),
+                text(s.role),
+                text(&s.replaces),
+                text(&s.item),
+                text(&c.currency),
+                full(s.capital_change),
+                full(s.annualised_change),
+                full(s.replaced_lifetime_years),
+                full(s.lifetime_years),
+                opt_full(s.cover_transmittance_change),
+                opt_full(s.yield_change_litres),
+                opt_full(s.cost_per_litre_change),
+                text(s.food_safety.join("; ")),
+                text(s.note.clone().unwrap_or_default()),
+            ]);
         }
     }
-    Ok(())
+    vec![bom, summary, cuts, substitutes]
 }

@@ -7,7 +7,6 @@
 use std::io::Write;
 use std::path::PathBuf;
 
-use anyhow::Context;
 use stillbench::compare::size::{
     self, DEFAULT_CONFIDENCE, DEFAULT_YEARS, DRINKING_AND_COOKING_L_PER_PERSON_DAY,
     DRINKING_L_PER_PERSON_DAY, SizeMethod, SizeOptions, SizeReport,
@@ -15,6 +14,8 @@ use stillbench::compare::size::{
 use stillbench::design::{DesignErrors, DesignIssue};
 
 use super::demand::DemandArgs;
+use super::export::{ExportArgs, Plan};
+use stillbench::compare::render;
 use stillbench::stills;
 
 /// Output formats.
@@ -24,7 +25,8 @@ pub enum Format {
     Text,
     /// JSON: the options and every figure per variant.
     Json,
-    /// CSV: one row per sized variant (rain not included).
+    /// CSV: one table — `sized` (a row per sized variant, the default) or `rain` (a row per
+    /// variant and month; `--table`).
     Csv,
 }
 
@@ -68,6 +70,9 @@ pub struct SizeArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,
+    /// Where the output goes, and which CSV table.
+    #[command(flatten)]
+    pub export: ExportArgs,
 }
 
 fn bad_option(file: &std::path::Path, option: &str, message: String) -> anyhow::Error {
@@ -134,6 +139,14 @@ fn resolve_demand(
 pub fn run(args: &SizeArgs) -> anyhow::Result<()> {
     let loaded = super::load(args.design.as_deref())?;
     let (demand_l_day, demand_note) = resolve_demand(args, &loaded)?;
+    let plan = args.export.plan(
+        &loaded.source,
+        args.format == Format::Csv,
+        &render::SIZE_TABLES,
+    )?;
+    if plan == Plan::Listed {
+        return Ok(());
+    }
     let opts = SizeOptions {
         demand_l_day,
         confidence: args.confidence,
@@ -149,19 +162,32 @@ pub fn run(args: &SizeArgs) -> anyhow::Result<()> {
     for s in &rep.skipped {
         eprintln!("note: `{}` is not sized: {}", s.name, s.reason);
     }
-    let mut out = std::io::stdout().lock();
+    let mut buf = Vec::new();
     match args.format {
         Format::Text => {
-            write_text(&mut out, &loaded.design.project.title, &demand_note, &rep)?;
-            stillbench::cautions::write_cautions(&mut out)?;
+            write_text(&mut buf, &loaded.design.project.title, &demand_note, &rep)?;
+            stillbench::cautions::write_cautions(&mut buf)?;
         }
         Format::Json => {
-            serde_json::to_writer_pretty(&mut out, &rep).context("writing JSON")?;
-            writeln!(out)?;
+            #[derive(serde::Serialize)]
+            struct Doc<'a> {
+                design: &'a str,
+                demand: &'a str,
+                #[serde(flatten)]
+                report: &'a SizeReport,
+            }
+            stillbench::output::write_document(
+                &mut buf,
+                &Doc {
+                    design: &loaded.design.project.title,
+                    demand: &demand_note,
+                    report: &rep,
+                },
+            )?;
         }
-        Format::Csv => write_csv(&mut out, &rep)?,
+        Format::Csv => return args.export.write_tables(&plan, &render::size_tables(&rep)),
     }
-    Ok(())
+    args.export.write_document(&buf)
 }
 
 /// Write the report as text.
@@ -263,53 +289,6 @@ pub fn write_text(
         for s in &rep.skipped {
             writeln!(out, "  {}: {}", s.name, s.reason)?;
         }
-    }
-    Ok(())
-}
-
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
-}
-
-/// Write the sizing as CSV, one row per sized variant.
-pub fn write_csv(out: &mut impl Write, rep: &SizeReport) -> std::io::Result<()> {
-    writeln!(
-        out,
-        "variant,kind,demand_l_day,confidence,years,seed,units,footprint_m2,capital,currency,\
-         worst_month,array_worst_month_l_day,met_fraction,noon_elevation_deg,row_height_m,\
-         row_gap_m,row_pitch_m,land_m2,storage_l,longest_low_run_days,operator_h_per_day"
-    )?;
-    let o = &rep.options;
-    for s in &rep.sized {
-        writeln!(
-            out,
-            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
-            csv_field(&s.name),
-            csv_field(&s.kind),
-            o.demand_l_day,
-            o.confidence,
-            o.years,
-            o.seed,
-            s.units,
-            s.footprint_m2,
-            s.capital,
-            csv_field(&rep.currency),
-            s.worst_month,
-            s.array_worst_month_l_day,
-            s.met_fraction,
-            s.noon_elevation_deg,
-            s.row_height_m,
-            s.row_gap_m,
-            s.row_pitch_m,
-            s.land_m2,
-            s.storage_l,
-            s.longest_low_run_days,
-            s.operator_h_per_day
-        )?;
     }
     Ok(())
 }

@@ -5,10 +5,12 @@
 use std::io::Write;
 use std::path::PathBuf;
 
-use anyhow::Context;
 use stillbench::compare::sweep::{self, BadSpec, ParamSpec, SweepError, SweepResult, Target};
 use stillbench::design::{DesignErrors, DesignIssue};
 use stillbench::stills::RunOptions;
+
+use super::export::{ExportArgs, Plan};
+use stillbench::compare::render;
 
 /// Output formats.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
@@ -57,6 +59,9 @@ pub struct SweepArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,
+    /// Where the output goes (`--out`, `--force`); CSV has one table, `points`.
+    #[command(flatten)]
+    pub export: ExportArgs,
 }
 
 fn bad_param(file: &std::path::Path, b: &BadSpec) -> anyhow::Error {
@@ -81,6 +86,12 @@ pub fn run(args: &SweepArgs) -> anyhow::Result<()> {
         }]))
         .into()
     };
+    let plan = args
+        .export
+        .plan(file, args.format == Format::Csv, &render::SWEEP_TABLES)?;
+    if plan == Plan::Listed {
+        return Ok(());
+    }
     let mut specs = Vec::with_capacity(args.params.len());
     for p in &args.params {
         specs.push(p.parse::<ParamSpec>().map_err(|b| bad_param(file, &b))?);
@@ -107,14 +118,17 @@ pub fn run(args: &SweepArgs) -> anyhow::Result<()> {
         Err(SweepError::Spec(b)) => return Err(bad_param(file, &b)),
         Err(SweepError::Run(e)) => return Err(e.into()),
     };
-    let mut out = std::io::stdout().lock();
+    let mut buf = Vec::new();
     match args.format {
-        Format::Text => write_text(&mut out, &res)?,
-        Format::Json => {
-            serde_json::to_writer_pretty(&mut out, &res).context("writing JSON")?;
-            writeln!(out)?;
-        }
-        Format::Csv => write_csv(&mut out, &res)?,
+        Format::Text => write_text(&mut buf, &res)?,
+        Format::Json => stillbench::output::write_document(&mut buf, &res)?,
+        Format::Csv => {}
+    }
+    if args.format == Format::Csv {
+        args.export
+            .write_tables(&plan, &[render::sweep_table(&res)])?;
+    } else {
+        args.export.write_document(&buf)?;
     }
     if res.best.is_none() {
         let reason = res
@@ -235,44 +249,6 @@ pub fn write_text(out: &mut impl Write, res: &SweepResult) -> std::io::Result<()
             "{failed} of {} points not simulated (see the notes above)",
             res.points.len()
         )?;
-    }
-    Ok(())
-}
-
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
-}
-
-fn csv_opt<T: ToString>(x: Option<T>) -> String {
-    x.map_or_else(String::new, |v| v.to_string())
-}
-
-/// Write the sweep as CSV, one row per point.
-pub fn write_csv(out: &mut impl Write, res: &SweepResult) -> std::io::Result<()> {
-    let mut head: Vec<String> = res.axes.iter().map(|a| csv_field(&a.field)).collect();
-    head.extend(
-        [
-            "annual_l_m2",
-            "worst_month_l_m2_day",
-            "worst_month",
-            "best",
-            "failed",
-        ]
-        .map(String::from),
-    );
-    writeln!(out, "{}", head.join(","))?;
-    for (i, p) in res.points.iter().enumerate() {
-        let mut row: Vec<String> = p.values.iter().map(f64::to_string).collect();
-        row.push(csv_opt(p.annual_l_m2));
-        row.push(csv_opt(p.worst_month_l_m2_day));
-        row.push(csv_opt(p.worst_month));
-        row.push((res.best == Some(i)).to_string());
-        row.push(csv_field(p.failed.as_deref().unwrap_or("")));
-        writeln!(out, "{}", row.join(","))?;
     }
     Ok(())
 }

@@ -5,13 +5,14 @@
 use std::io::{IsTerminal, Write};
 use std::path::PathBuf;
 
-use anyhow::Context;
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
 use stillbench::compare::uncertainty::{
     DEFAULT_SAMPLES, UncertaintyOptions, UncertaintyReport, Z_P90,
 };
-use stillbench::compare::{Percentiles, run_uncertainty};
+use stillbench::compare::{Percentiles, render, run_uncertainty};
 use stillbench::design::LoadedDesign;
+
+use super::export::{ExportArgs, Plan};
 
 /// Output formats.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
@@ -20,7 +21,8 @@ pub enum Format {
     Text,
     /// JSON: options, parameters, percentiles per variant, sensitivity bars.
     Json,
-    /// CSV: one row per variant with every percentile.
+    /// CSV: one table — `percentiles` (a row per variant, the default), `parameters` or
+    /// `sensitivity` (`--table`).
     Csv,
 }
 
@@ -53,6 +55,9 @@ pub struct UncertaintyArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Text)]
     pub format: Format,
+    /// Where the output goes, and which CSV table.
+    #[command(flatten)]
+    pub export: ExportArgs,
 }
 
 /// A progress bar on standard error, hidden when standard error is not a terminal.
@@ -88,6 +93,14 @@ pub fn run_with_bar(
 /// Run `uncertainty`.
 pub fn run(args: &UncertaintyArgs) -> anyhow::Result<()> {
     let loaded = super::load(args.design.as_deref())?;
+    let plan = args.export.plan(
+        &loaded.source,
+        args.format == Format::Csv,
+        &render::UNCERTAINTY_TABLES,
+    )?;
+    if plan == Plan::Listed {
+        return Ok(());
+    }
     let opts = UncertaintyOptions {
         samples: args.samples,
         seed: args.seed,
@@ -97,20 +110,35 @@ pub fn run(args: &UncertaintyArgs) -> anyhow::Result<()> {
     for s in &rep.skipped {
         eprintln!("note: `{}` has no figures: {}", s.name, s.reason);
     }
-    let mut out = std::io::stdout().lock();
+    let mut buf = Vec::new();
     match args.format {
         Format::Text => {
-            writeln!(out, "{}\n", loaded.design.project.title)?;
-            write_text(&mut out, &rep)?;
-            stillbench::cautions::write_cautions(&mut out)?;
+            writeln!(buf, "{}\n", loaded.design.project.title)?;
+            write_text(&mut buf, &rep)?;
+            stillbench::cautions::write_cautions(&mut buf)?;
         }
         Format::Json => {
-            serde_json::to_writer_pretty(&mut out, &rep).context("writing JSON")?;
-            writeln!(out)?;
+            #[derive(serde::Serialize)]
+            struct Doc<'a> {
+                design: &'a str,
+                #[serde(flatten)]
+                report: &'a UncertaintyReport,
+            }
+            stillbench::output::write_document(
+                &mut buf,
+                &Doc {
+                    design: &loaded.design.project.title,
+                    report: &rep,
+                },
+            )?;
         }
-        Format::Csv => write_csv(&mut out, &rep)?,
+        Format::Csv => {
+            return args
+                .export
+                .write_tables(&plan, &render::uncertainty_tables(&rep));
+        }
     }
-    Ok(())
+    args.export.write_document(&buf)
 }
 
 fn p3(p: &Percentiles, decimals: usize) -> String {
@@ -230,48 +258,4 @@ pub fn write_text(out: &mut impl Write, rep: &UncertaintyReport) -> std::io::Res
         }
     }
     writeln!(out)
-}
-
-/// Write one CSV row per variant.
-pub fn write_csv(out: &mut impl Write, rep: &UncertaintyReport) -> std::io::Result<()> {
-    writeln!(
-        out,
-        "variant,kind,samples,seed,model_form_sd,deterministic_annual_l_m2,annual_l_m2_p10,\
-         annual_l_m2_p50,annual_l_m2_p90,mean_l_day_p10,mean_l_day_p50,mean_l_day_p90,\
-         deterministic_worst_month_l_m2_day,worst_month_l_m2_day_p10,worst_month_l_m2_day_p50,\
-         worst_month_l_m2_day_p90,worst_month_l_day_p10,worst_month_l_day_p50,\
-         worst_month_l_day_p90"
-    )?;
-    for v in &rep.variants {
-        let (a, l, w, wl) = (
-            &v.annual_l_m2,
-            &v.mean_l_day,
-            &v.worst_month_l_m2_day,
-            &v.worst_month_l_day,
-        );
-        writeln!(
-            out,
-            "{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}",
-            v.name,
-            v.kind,
-            rep.samples,
-            rep.seed,
-            rep.model_form_sd,
-            v.deterministic_annual_l_m2,
-            a.p10,
-            a.p50,
-            a.p90,
-            l.p10,
-            l.p50,
-            l.p90,
-            v.deterministic_worst_month_l_m2_day,
-            w.p10,
-            w.p50,
-            w.p90,
-            wl.p10,
-            wl.p50,
-            wl.p90
-        )?;
-    }
-    Ok(())
 }

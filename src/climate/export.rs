@@ -8,6 +8,10 @@ use crate::physics::constants::ZERO_CELSIUS_K;
 use std::collections::BTreeSet;
 use std::io::{self, Write};
 
+use serde_json::{Value, json};
+
+use crate::output::table::{Table, TableSpec, num};
+
 /// One month of a series, as the climate table shows it.
 #[derive(Debug, Clone, PartialEq)]
 pub struct MonthlyRow {
@@ -139,84 +143,158 @@ fn truncate(s: &str, n: usize) -> String {
     s.chars().take(n).collect()
 }
 
-/// Header of the hourly CSV export.
+/// Column names of the hourly export before the plane columns (CSV header and JSON fields).
+pub const HOURLY_COLUMNS: [&str; 15] = [
+    "month",
+    "day_of_year",
+    "hour_mid_solar_h",
+    "period_h",
+    "ghi_w_m2",
+    "dhi_w_m2",
+    "dni_w_m2",
+    "t_air_c",
+    "t_dew_c",
+    "wind_m_s",
+    "wind_height_m",
+    "sun_zenith_deg",
+    "sun_azimuth_deg",
+    "beam_visible_fraction",
+    "measured_poa_w_m2",
+];
+
+/// Header of the hourly CSV export (before the `poa_<name>_w_m2` plane columns).
 pub const HOURLY_CSV_HEADER: &str = "month,day_of_year,hour_mid_solar_h,period_h,ghi_w_m2,\
 dhi_w_m2,dni_w_m2,t_air_c,t_dew_c,wind_m_s,wind_height_m,sun_zenith_deg,sun_azimuth_deg,\
 beam_visible_fraction,measured_poa_w_m2";
 
-/// Write the hourly series as CSV (one row per record, header [`HOURLY_CSV_HEADER`]),
-/// optionally with the irradiance on planes (`poa_<name>_w_m2` columns).
+/// The tables of `climate`: `hourly` (the default) and `monthly`.
+pub const TABLES: [TableSpec; 2] = [
+    TableSpec {
+        name: "hourly",
+        about: "one row per weather record, with the irradiance on every cover plane",
+    },
+    TableSpec {
+        name: "monthly",
+        about: "one row per month: irradiation on the horizontal and every cover plane, temperatures, wind",
+    },
+];
+
+/// The name of a plane's column: `poa_<name>_w_m2` (hourly) or `poa_<name>_kwh_m2_day`
+/// (monthly).
+/// Spaces in the name (a double-slope still's `twin-roof E`) become `_`.
+fn plane_column(name: &str, unit: &str) -> String {
+    format!("poa_{}_{unit}", name.replace(char::is_whitespace, "_"))
+}
+
+/// The hourly series as a table (header [`HOURLY_COLUMNS`] then one `poa_<name>_w_m2` column
+/// per plane, the total irradiance on that plane by `model`).
+pub fn hourly_table(series: &WeatherSeries, planes: &[(String, Plane)], model: SkyModel) -> Table {
+    let mut columns: Vec<String> = HOURLY_COLUMNS.iter().map(|c| (*c).to_owned()).collect();
+    columns.extend(planes.iter().map(|(n, _)| plane_column(n, "w_m2")));
+    let mut t = Table::with_columns("hourly", columns);
+    for h in &series.hours {
+        let mut row = vec![
+            json!(h.month),
+            json!(h.day_of_year),
+            num(h.hour_mid_solar_h, 3),
+            num(h.period_h, 4),
+            num(h.ghi_w_m2, 2),
+            num(h.dhi_w_m2, 2),
+            num(h.dni_w_m2, 2),
+            num(h.t_air_k - ZERO_CELSIUS_K, 2),
+            num(h.t_dew_k - ZERO_CELSIUS_K, 2),
+            num(h.wind_m_s, 2),
+            num(h.wind_height_m, 1),
+            num(h.sun.zenith_rad.to_degrees(), 3),
+            num(h.sun.azimuth_rad.to_degrees(), 3),
+            num(h.beam_visible_fraction, 3),
+            h.measured_poa_w_m2.map_or(Value::Null, |p| num(p, 2)),
+        ];
+        for (_, plane) in planes {
+            let p = plane_irradiance(h, *plane, series.albedo, model);
+            row.push(num(p.beam_w_m2 + p.sky_diffuse_w_m2 + p.ground_w_m2, 2));
+        }
+        t.push(row);
+    }
+    t
+}
+
+/// The monthly summary as a table, one `poa_<name>_kwh_m2_day` column per plane.
+pub fn monthly_csv_table(rows: &[MonthlyRow], plane_names: &[String]) -> Table {
+    let mut columns: Vec<String> = ["month", "days", "ghi_kwh_m2_day"]
+        .iter()
+        .map(|c| (*c).to_owned())
+        .collect();
+    columns.extend(plane_names.iter().map(|n| plane_column(n, "kwh_m2_day")));
+    columns.extend(
+        ["t_max_c", "t_min_c", "t_mean_c", "wind_m_s"]
+            .iter()
+            .map(|c| (*c).to_owned()),
+    );
+    let mut t = Table::with_columns("monthly", columns);
+    for r in rows {
+        let mut row = vec![json!(r.month), json!(r.days), num(r.ghi_kwh_m2_day, 4)];
+        row.extend(r.plane_kwh_m2_day.iter().map(|v| num(*v, 4)));
+        row.extend([
+            num(r.t_max_c, 2),
+            num(r.t_min_c, 2),
+            num(r.t_mean_c, 2),
+            num(r.wind_m_s, 2),
+        ]);
+        t.push(row);
+    }
+    t
+}
+
+/// Write the hourly series as CSV (see [`hourly_table`]).
 pub fn write_hourly_csv(
     w: &mut (impl Write + ?Sized),
     series: &WeatherSeries,
     planes: &[(String, Plane)],
     model: SkyModel,
 ) -> io::Result<()> {
-    write!(w, "{HOURLY_CSV_HEADER}")?;
-    for (name, _) in planes {
-        write!(w, ",poa_{name}_w_m2")?;
-    }
-    writeln!(w)?;
-    for (i, h) in series.hours.iter().enumerate() {
-        write!(
-            w,
-            "{},{},{:.3},{:.4},{:.2},{:.2},{:.2},{:.2},{:.2},{:.2},{:.1},{:.3},{:.3},{:.3},",
-            h.month,
-            h.day_of_year,
-            h.hour_mid_solar_h,
-            h.period_h,
-            h.ghi_w_m2,
-            h.dhi_w_m2,
-            h.dni_w_m2,
-            h.t_air_k - ZERO_CELSIUS_K,
-            h.t_dew_k - ZERO_CELSIUS_K,
-            h.wind_m_s,
-            h.wind_height_m,
-            h.sun.zenith_rad.to_degrees(),
-            h.sun.azimuth_rad.to_degrees(),
-            h.beam_visible_fraction,
-        )?;
-        if let Some(p) = h.measured_poa_w_m2 {
-            write!(w, "{p:.2}")?;
-        }
-        for (_, plane) in planes {
-            let p = plane_irradiance(&series.hours[i], *plane, series.albedo, model);
-            write!(
-                w,
-                ",{:.2}",
-                p.beam_w_m2 + p.sky_diffuse_w_m2 + p.ground_w_m2
-            )?;
-        }
-        writeln!(w)?;
-    }
-    Ok(())
+    hourly_table(series, planes, model).write_csv(w)
 }
 
-/// Write the hourly series as a JSON array of objects with the CSV export's field names.
-pub fn write_hourly_json(w: &mut (impl Write + ?Sized), series: &WeatherSeries) -> io::Result<()> {
-    let rows: Vec<serde_json::Value> = series
-        .hours
-        .iter()
-        .map(|h| {
-            serde_json::json!({
-                "month": h.month,
-                "day_of_year": h.day_of_year,
-                "hour_mid_solar_h": h.hour_mid_solar_h,
-                "period_h": h.period_h,
-                "ghi_w_m2": h.ghi_w_m2,
-                "dhi_w_m2": h.dhi_w_m2,
-                "dni_w_m2": h.dni_w_m2,
-                "t_air_c": h.t_air_k - ZERO_CELSIUS_K,
-                "t_dew_c": h.t_dew_k - ZERO_CELSIUS_K,
-                "wind_m_s": h.wind_m_s,
-                "wind_height_m": h.wind_height_m,
-                "sun_zenith_deg": h.sun.zenith_rad.to_degrees(),
-                "sun_azimuth_deg": h.sun.azimuth_rad.to_degrees(),
-                "beam_visible_fraction": h.beam_visible_fraction,
-                "measured_poa_w_m2": h.measured_poa_w_m2,
-            })
-        })
-        .collect();
-    serde_json::to_writer_pretty(&mut *w, &rows).map_err(io::Error::from)?;
-    writeln!(w)
+/// Write the climate as one JSON document: `{"schema_version", "site", "planes": [names],
+/// "monthly": [{"month", "days", "ghi_kwh_m2_day", "poa_<name>_kwh_m2_day", …}], "hours":
+/// [{the hourly columns, "poa_<name>_w_m2", …}]}` — the fields of both CSV tables.
+pub fn write_json(
+    w: &mut (impl Write + ?Sized),
+    site_name: &str,
+    series: &WeatherSeries,
+    planes: &[(String, Plane)],
+    model: SkyModel,
+) -> io::Result<()> {
+    let names: Vec<String> = planes.iter().map(|(n, _)| n.clone()).collect();
+    let plain: Vec<Plane> = planes.iter().map(|(_, p)| *p).collect();
+    let monthly = monthly_csv_table(&monthly_table(series, &plain, model), &names);
+    let hourly = hourly_table(series, planes, model);
+    let objects = |t: &Table| -> Vec<serde_json::Map<String, Value>> {
+        t.rows
+            .iter()
+            .map(|r| t.columns.iter().cloned().zip(r.iter().cloned()).collect())
+            .collect()
+    };
+    #[derive(serde::Serialize)]
+    struct Doc<'a> {
+        site: &'a str,
+        sky_model: &'a str,
+        planes: &'a [String],
+        monthly: Vec<serde_json::Map<String, Value>>,
+        hours: Vec<serde_json::Map<String, Value>>,
+    }
+    crate::output::write_document(
+        w,
+        &Doc {
+            site: site_name,
+            sky_model: match model {
+                SkyModel::HayDavies => "Hay-Davies",
+                SkyModel::Isotropic => "isotropic",
+            },
+            planes: &names,
+            monthly: objects(&monthly),
+            hours: objects(&hourly),
+        },
+    )
 }

@@ -16,6 +16,7 @@
 pub mod audit;
 pub mod evaluate;
 pub mod rank;
+pub mod render;
 pub mod response;
 pub mod sensitivity;
 pub mod size;

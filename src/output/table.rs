@@ -113,6 +113,11 @@ pub fn opt_num(x: Option<f64>, decimals: i32) -> Value {
     x.map_or(Value::Null, |x| num(x, decimals))
 }
 
+/// An optional number in full precision; `None` or not finite → `null`.
+pub fn opt_full(x: Option<f64>) -> Value {
+    x.map_or(Value::Null, full)
+}
+
 /// A text value.
 pub fn text(s: impl Into<String>) -> Value {
     Value::String(s.into())

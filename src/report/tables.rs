@@ -1,52 +1,11 @@
 //! Every table of the report as data, exported as CSV and JSON beside the report.
 
-use std::io::Write;
-
-use serde::Serialize;
-use serde_json::{Value, json};
+use serde_json::json;
 
 use super::context::ReportContext;
 
-/// One exported table.
-#[derive(Debug, Clone, PartialEq, Serialize)]
-pub struct Table {
-    /// File stem (`ranking` → `tables/ranking.csv`, `tables/ranking.json`).
-    pub name: String,
-    /// Column names with units.
-    pub columns: Vec<String>,
-    /// Rows, one value per column.
-    pub rows: Vec<Vec<Value>>,
-}
-
-impl Table {
-    fn new(name: &str, columns: &[&str]) -> Self {
-        Self {
-            name: name.into(),
-            columns: columns.iter().map(|c| (*c).to_owned()).collect(),
-            rows: Vec::new(),
-        }
-    }
-
-    /// Write as CSV (header row, then one row per record; numbers in full precision).
-    pub fn write_csv(&self, w: &mut impl Write) -> std::io::Result<()> {
-        let mut out = csv::Writer::from_writer(w);
-        out.write_record(&self.columns)?;
-        for r in &self.rows {
-            out.write_record(r.iter().map(|v| match v {
-                Value::String(s) => s.clone(),
-                Value::Null => String::new(),
-                other => other.to_string(),
-            }))?;
-        }
-        out.flush()
-    }
-
-    /// Write as JSON: `{"table": …, "columns": […], "rows": [[…], …]}`.
-    pub fn write_json(&self, w: &mut impl Write) -> std::io::Result<()> {
-        serde_json::to_writer_pretty(&mut *w, self)?;
-        writeln!(w)
-    }
-}
+/// One exported table: the shared CSV/JSON table of every command (docs/output.md).
+pub use crate::output::Table;
 
 /// The tables of a context: summary, need, climate, ranking, monthly yield, sizing, energy
 /// balance, life-cycle cost, operation, day profile, environment, references (and the hooks'

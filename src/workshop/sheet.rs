@@ -443,8 +443,8 @@ pub fn workshop_sheet(
     })
 }
 
-/// Write the sheet as JSON (the context the report template receives under `workshop`).
+/// Write the sheet as one JSON document (the context the report template receives under
+/// `workshop`, with `schema_version` first; docs/output.md).
 pub fn write_json(sheet: &WorkshopSheet, out: &mut impl Write) -> io::Result<()> {
-    serde_json::to_writer_pretty(&mut *out, sheet).map_err(io::Error::other)?;
-    writeln!(out)
+    crate::output::write_document(out, sheet)
 }
