@@ -249,7 +249,10 @@ fn every_format(label: &str, args: &[String], json: bool, csv: bool, tmp: &Path)
                 // A table that needs an option not given (compare's `uncertainty` without
                 // --samples) is refused, naming --table, with nothing on standard output.
                 let err = String::from_utf8_lossy(&out.stderr);
-                assert!(err.contains("--table") && out.stdout.is_empty(), "{l}: {err}");
+                assert!(
+                    err.contains("--table") && out.stdout.is_empty(),
+                    "{l}: {err}"
+                );
                 continue;
             }
             assert!(out.status.success(), "{l}: {out:?}");
