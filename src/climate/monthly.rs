@@ -45,19 +45,32 @@ pub struct MonthlyMeans {
 
 /// Upper bound of the monthly clearness index accepted (no monthly mean exceeds this on
 /// Earth; common practice, no source).
-const KT_BAR_MAX: f64 = 0.85;
+pub const KT_BAR_MAX: f64 = 0.85;
+
+/// Daily extraterrestrial irradiation on a horizontal surface on Klein's recommended day of
+/// each month at `latitude_deg`, January first [kWh m⁻² day⁻¹] (Duffie & Beckman eq. 1.10.3
+/// via [`crate::physics::sun::daily_extraterrestrial_horizontal_j_m2`]; 0 in polar night).
+pub fn monthly_extraterrestrial_kwh_m2_day(latitude_deg: f64) -> [f64; 12] {
+    let lat = latitude_deg.to_radians();
+    std::array::from_fn(|m| {
+        crate::physics::sun::daily_extraterrestrial_horizontal_j_m2(
+            lat,
+            klein_recommended_day(m as u32 + 1),
+        ) / J_PER_KWH
+    })
+}
 
 impl MonthlyMeans {
     /// Check every value; returns the first problem with its field name.
     pub fn validate(&self, table: &SunTable) -> Result<(), ClimateError> {
         if !(self.wind_height_m.is_finite() && self.wind_height_m > 0.0) {
             return Err(ClimateError::bad(
-                "wind_height_m",
+                "site.climate.wind_height_m",
                 format!("{} must be a positive height in metres", self.wind_height_m),
             ));
         }
         for m in 0..12 {
-            let f = |name: &str| format!("{name}[{m}] (month {})", m + 1);
+            let f = |name: &str| format!("site.climate.{name}[{}]", m + 1);
             let ghi = self.ghi_kwh_m2_day[m];
             if !(ghi.is_finite() && ghi >= 0.0) {
                 return Err(ClimateError::bad(
@@ -78,7 +91,7 @@ impl MonthlyMeans {
             let (tx, tn) = (self.t_max_c[m], self.t_min_c[m]);
             if !(tx.is_finite() && tn.is_finite() && (-90.0..=60.0).contains(&tn) && tx <= 70.0) {
                 return Err(ClimateError::bad(
-                    f("t_max_c/t_min_c"),
+                    f("t_min_c"),
                     format!("{tx}/{tn} °C outside −90…70 °C"),
                 ));
             }
@@ -99,7 +112,7 @@ impl MonthlyMeans {
                 Humidity::RelativePercent(rh) => {
                     if !(rh[m].is_finite() && rh[m] > 0.0 && rh[m] <= 100.0) {
                         return Err(ClimateError::bad(
-                            f("relative_humidity_percent"),
+                            f("rh_percent"),
                             format!("{} outside 0…100 %", rh[m]),
                         ));
                     }
@@ -266,7 +279,7 @@ pub fn average_days(
         };
         if h > 0.0 && day.h0_j_m2 <= 0.0 {
             return Err(ClimateError::bad(
-                format!("ghi_kwh_m2_day[{m}] (month {month})"),
+                format!("site.climate.ghi_kwh_m2_day[{month}]"),
                 "irradiation given for a month of polar night".to_string(),
             ));
         }

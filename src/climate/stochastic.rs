@@ -225,7 +225,7 @@ impl StochasticModel {
             let kt = means.clearness_index(&table, m as u32 + 1);
             *d = BendtDistribution::from_mean(kt).map_err(|e| match e {
                 ClimateError::BadInput { message, .. } => {
-                    ClimateError::bad(format!("ghi_kwh_m2_day[{m}] (month {})", m + 1), message)
+                    ClimateError::bad(format!("site.climate.ghi_kwh_m2_day[{}]", m + 1), message)
                 }
                 other => other,
             })?;

@@ -276,6 +276,12 @@ pub(crate) fn project(
 /// `[site]` without its climate.
 pub(crate) fn site(r: &mut Reader<'_>, s: &Site) {
     text_len(r, "site.name", &s.name, 200);
+    if let Climate::Monthly(m) = &s.climate
+        && s.latitude_deg.is_finite()
+        && (-90.0..=90.0).contains(&s.latitude_deg)
+    {
+        monthly_sunlight_below_extraterrestrial(r, s.latitude_deg, &m.ghi_kwh_m2_day);
+    }
     range(
         r,
         "site.latitude_deg",
@@ -335,6 +341,39 @@ pub(crate) fn site(r: &mut Reader<'_>, s: &Site) {
             B::Ex(90.0),
             "deg",
         );
+    }
+}
+
+/// Monthly sunlight on the ground cannot exceed `KT_BAR_MAX` of the extraterrestrial
+/// irradiation at the site's latitude (a monthly clearness index above 0.85 is not seen on
+/// Earth; common practice, no source), nor be given for a month of polar night.
+fn monthly_sunlight_below_extraterrestrial(r: &mut Reader<'_>, latitude_deg: f64, ghi: &[f64; 12]) {
+    use crate::climate::monthly::{KT_BAR_MAX, monthly_extraterrestrial_kwh_m2_day};
+    let h0 = monthly_extraterrestrial_kwh_m2_day(latitude_deg);
+    for m in 0..12 {
+        let path = spans::index("site.climate.ghi_kwh_m2_day", m);
+        let g = ghi[m];
+        if g > 0.0 && h0[m] <= 0.0 {
+            r.error(
+                &path,
+                format!(
+                    "{g} kWh/m2/day given for a month of polar night at latitude \
+                     {latitude_deg}°; allowed 0 (check the latitude's sign)"
+                ),
+            );
+        } else if g > KT_BAR_MAX * h0[m] {
+            r.error(
+                &path,
+                format!(
+                    "{g} kWh/m2/day is more than {KT_BAR_MAX} of the {:.2} kWh/m2/day that reaches \
+                     the top of the atmosphere at latitude {latitude_deg}° in month {}; allowed \
+                     [0, {:.2}] (check the units, the month order and the latitude's sign)",
+                    h0[m],
+                    m + 1,
+                    KT_BAR_MAX * h0[m]
+                ),
+            );
+        }
     }
 }
 

@@ -52,7 +52,7 @@ pub use multi_effect::MultiEffectStill;
 pub use single_slope::SingleSlopeStill;
 pub use stepped::SteppedStill;
 pub use sunlight::SunlightSplit;
-pub use weather::{SiteWeather, site_weather};
+pub use weather::{SiteWeather, preflight, site_weather};
 pub use wick::WickStill;
 
 /// Largest energy residual accepted, as a fraction of the absorbed sunlight (DESIGN.md:

@@ -32,6 +32,48 @@ fn bad_input(loaded: &LoadedDesign, message: String) -> Error {
     }]))
 }
 
+/// A climate error names the design file (and `site.climate.` fields) where the climate
+/// module, which does not know the file, left them out.
+fn in_design_file(loaded: &LoadedDesign, e: Error) -> Error {
+    match e {
+        Error::Design(DesignErrors(mut issues)) => {
+            for i in &mut issues {
+                if i.file.as_os_str().is_empty() {
+                    i.file = loaded.source.clone();
+                    if !i.path.starts_with("site") {
+                        i.path = format!("site.climate.{}", i.path);
+                    }
+                }
+            }
+            Error::Design(DesignErrors(issues))
+        }
+        other => other,
+    }
+}
+
+/// Every problem a run would find in a loaded (validated) design before it simulates: the
+/// weather (a weather file's contents, the monthly means against the sun) and each variant's
+/// model (geometry that does not fit, materials without the properties the kind needs).
+/// `stillbench check` runs it so that it rejects what a run would reject.
+///
+/// Errors: all the bad-input problems found, together; another error as it came.
+pub fn preflight(loaded: &LoadedDesign) -> Result<(), Error> {
+    let weather = site_weather(loaded)?;
+    let mut issues = Vec::new();
+    for v in &loaded.design.variants {
+        match super::build_model(loaded, v, &weather) {
+            Ok(_) => {}
+            Err(Error::Design(DesignErrors(found))) => issues.extend(found),
+            Err(other) => return Err(other),
+        }
+    }
+    if issues.is_empty() {
+        Ok(())
+    } else {
+        Err(Error::Design(DesignErrors(issues)))
+    }
+}
+
 /// Build the hourly weather of a loaded (validated) design with the climate module
 /// ([`climate::site_weather`] on the design's [`design::Site::location`] and
 /// [`design::Site::climate_source`]). A climate the climate module rejects is bad input
@@ -39,7 +81,8 @@ fn bad_input(loaded: &LoadedDesign, message: String) -> Error {
 pub fn site_weather(loaded: &LoadedDesign) -> Result<SiteWeather, Error> {
     let site = &loaded.design.site;
     let location = site.location();
-    let built = climate::site_weather(&location, &site.climate_source())?;
+    let built = climate::site_weather(&location, &site.climate_source())
+        .map_err(|e| in_design_file(loaded, e.into()))?;
     let series = built.series;
     let (average_days, dew_point_known) = match &site.climate {
         Climate::Monthly(m) => (true, !m.humidity_defaulted),

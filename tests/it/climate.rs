@@ -802,7 +802,10 @@ fn invalid_monthly_means_are_refused_with_the_field_named() {
     let mut means = means_with_kt(&site, 0.55);
     means.ghi_kwh_m2_day[3] = 40.0; // Wh given as kWh, say
     match average_days(&means, &site, &table) {
-        Err(ClimateError::BadInput { field, .. }) => assert!(field.contains("ghi_kwh_m2_day[3]")),
+        Err(ClimateError::BadInput { field, .. }) => assert_eq!(
+            field, "site.climate.ghi_kwh_m2_day[4]",
+            "1-based, the user's field name"
+        ),
         other => panic!("{other:?}"),
     }
     let mut means = means_with_kt(&site, 0.55);

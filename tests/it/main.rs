@@ -1,6 +1,7 @@
 //! One integration-test binary (one link step) with a module per area.
 
 mod calibrate;
+mod check;
 mod cli;
 mod climate;
 mod compare;
