@@ -756,7 +756,7 @@ pub fn calibrate_with(
             .with_ftol(1e-8)
             .with_xtol(1e-8)
             .minimize(problem);
-        termination = format!("{:?}", report.termination);
+        termination = termination_in_words(&report.termination);
         if !report.termination.was_successful() && pass + 1 == passes {
             warnings.push(format!(
                 "the minimiser stopped without converging ({termination}); treat the values with \
@@ -923,4 +923,29 @@ pub fn calibrate_with(
         data: measured.summary.clone(),
         overlay,
     })
+}
+
+/// Why the minimiser stopped, in words for the output (never the Rust value).
+fn termination_in_words(t: &levenberg_marquardt::TerminationReason) -> String {
+    use levenberg_marquardt::TerminationReason as T;
+    match t {
+        T::Converged { ftol, xtol } => match (ftol, xtol) {
+            (true, true) => "converged: the sum of squares and the parameters stopped changing",
+            (true, false) => "converged: the sum of squares stopped changing",
+            (false, true) => "converged: the parameters stopped changing",
+            (false, false) => "converged",
+        }
+        .to_owned(),
+        T::ResidualsZero => "converged: the residuals are zero".to_owned(),
+        T::Orthogonal => {
+            "converged: the residuals are orthogonal to the Jacobian's columns".to_owned()
+        }
+        T::LostPatience => "stopped: the evaluation budget ran out".to_owned(),
+        T::NoImprovementPossible(why) => format!("stopped: no further improvement ({why})"),
+        T::Numerical(why) => format!("stopped: a numerical problem ({why})"),
+        T::User(why) => format!("stopped: {why}"),
+        T::NoParameters => "stopped: nothing to fit".to_owned(),
+        T::NoResiduals => "stopped: no measured values to fit".to_owned(),
+        T::WrongDimensions(why) => format!("stopped: inconsistent sizes ({why})"),
+    }
 }

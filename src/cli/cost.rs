@@ -235,8 +235,16 @@ pub fn write_text(
         for f in &r.bom.food_safety {
             writeln!(
                 out,
-                "  FLAG {} ({}, touches {:?}): {}",
-                f.item, f.part, f.contact, f.reason
+                "  FLAG {} ({}, touches {}): {}",
+                f.item,
+                f.part,
+                match f.contact {
+                    stillbench::economics::takeoff::Contact::Dry => "nothing wet",
+                    stillbench::economics::takeoff::Contact::Brine => "the hot brine",
+                    stillbench::economics::takeoff::Contact::Vapour => "the hot vapour",
+                    stillbench::economics::takeoff::Contact::Distillate => "the distillate",
+                },
+                f.reason
             )?;
         }
     }

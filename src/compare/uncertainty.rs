@@ -43,8 +43,8 @@ pub const DEFAULT_MODEL_FORM_SD: f64 = crate::calibrate::validation::MODEL_FORM_
 
 /// Where [`DEFAULT_MODEL_FORM_SD`] comes from, as the output names it.
 pub const MODEL_FORM_SOURCE: &str = "the default model's scatter against published devices \
-     (stillbench::calibrate::validation::MODEL_FORM_RELATIVE_SD: root-mean-square of \
-     ln(model / published)), used as sigma of ln(factor) of a log-normal factor with median 1";
+     (the root-mean-square of ln(model / published) over the validation devices, docs/calibrate.md), \
+     used as sigma of ln(factor) of a log-normal factor with median 1";
 
 /// The multiplicative model-form factor at standard normal deviate `z`: exp(σ·z), median 1,
 /// σ = `sd_ln` [-] the standard deviation of ln(factor); `z` is truncated at

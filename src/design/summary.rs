@@ -3,7 +3,9 @@
 use std::io::{self, Write};
 
 use super::LoadedDesign;
-use super::schema::{Climate, Humidity, MonthlyClimate, Sink, Variant, VariantKind};
+use super::schema::{
+    Climate, Humidity, MonthlyClimate, Period, Sink, Variant, VariantKind, WeatherFormat,
+};
 
 const MONTHS: [&str; 12] = [
     "Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec",
@@ -196,10 +198,17 @@ pub fn write_summary(w: &mut dyn Write, loaded: &LoadedDesign) -> io::Result<()>
         Climate::Monthly(m) => monthly(w, m)?,
         Climate::WeatherFile(f) => writeln!(
             w,
-            "Climate:   weather file {} ({:?}, timestamps mark the {:?} of each interval)",
+            "Climate:   weather file {} ({}, timestamps mark the {} of each interval)",
             f.path.display(),
-            f.format,
-            f.period
+            match f.format {
+                WeatherFormat::Csv => "CSV",
+                WeatherFormat::Epw => "EPW",
+            },
+            match f.period {
+                Period::Ending => "end",
+                Period::Beginning => "start",
+                Period::Centred => "middle",
+            }
         )?,
     }
     let lib = &loaded.library;

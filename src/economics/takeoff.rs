@@ -346,7 +346,7 @@ pub fn takeoff(v: &Variant, index: usize, lib: &Library, c: &Costs) -> Takeoff {
                     "cover",
                     &v.cover,
                     &cover_field,
-                    "W·L/cos θ (Variant::cover_area_m2)",
+                    "W·L/cos θ",
                     Amount::AreaM2(v.cover_area_m2()),
                     Contact::Distillate,
                 )
@@ -440,7 +440,7 @@ pub fn takeoff(v: &Variant, index: usize, lib: &Library, c: &Costs) -> Takeoff {
                     "cover",
                     &v.cover,
                     &cover_field,
-                    "W·L/cos θ, two faces of (W/2)/cos θ × L (Variant::cover_area_m2)",
+                    "W·L/cos θ, two faces of (W/2)/cos θ × L",
                     Amount::AreaM2(v.cover_area_m2()),
                     Contact::Distillate,
                 )
@@ -531,7 +531,7 @@ pub fn takeoff(v: &Variant, index: usize, lib: &Library, c: &Costs) -> Takeoff {
                     "cover",
                     &v.cover,
                     &cover_field,
-                    "W·L/cos θ (Variant::cover_area_m2)",
+                    "W·L/cos θ",
                     Amount::AreaM2(v.cover_area_m2()),
                     Contact::Distillate,
                 )
@@ -626,7 +626,7 @@ pub fn takeoff(v: &Variant, index: usize, lib: &Library, c: &Costs) -> Takeoff {
                     "cover",
                     &v.cover,
                     &cover_field,
-                    "W·L/cos θ (Variant::cover_area_m2)",
+                    "W·L/cos θ",
                     Amount::AreaM2(v.cover_area_m2()),
                     Contact::Distillate,
                 )
@@ -652,7 +652,7 @@ pub fn takeoff(v: &Variant, index: usize, lib: &Library, c: &Costs) -> Takeoff {
                     "trays",
                     &c.items.tray,
                     "costs.items.tray",
-                    "n·(W/n + 2·d)·(L + 2·d) tray blanks (Stepped::tread_m)",
+                    "n·(W/n + 2·d)·(L + 2·d) tray blanks",
                     Amount::AreaM2(fnn * (t + 2.0 * d) * (l + 2.0 * d)),
                     Contact::Dry,
                 )
@@ -743,7 +743,7 @@ pub fn takeoff(v: &Variant, index: usize, lib: &Library, c: &Costs) -> Takeoff {
                     "glazing",
                     &v.cover,
                     &cover_field,
-                    "W·L/cos θ (Variant::cover_area_m2)",
+                    "W·L/cos θ",
                     Amount::AreaM2(v.cover_area_m2()),
                     Contact::Dry,
                 )

@@ -374,8 +374,8 @@ fn model_form_default_is_the_validation_constant_as_sigma_of_ln() {
     // root-mean-square of ln(model / published), i.e. σ of ln(factor)), referenced, not copied.
     let opts = UncertaintyOptions::default();
     assert!((opts.model_form_sd - MODEL_FORM_RELATIVE_SD).abs() < 1e-15);
-    assert!(uncertainty::model_form_source(opts.model_form_sd).contains("MODEL_FORM_RELATIVE_SD"));
-    assert!(!uncertainty::model_form_source(0.3).contains("MODEL_FORM_RELATIVE_SD"));
+    assert!(uncertainty::model_form_source(opts.model_form_sd).contains("validation devices"));
+    assert!(!uncertainty::model_form_source(0.3).contains("validation devices"));
     // Median 1 at z = 0; truncated at ±3 like every draw.
     assert!((uncertainty::model_form_factor(0.2, 0.0) - 1.0).abs() < 1e-15);
     assert!((uncertainty::model_form_factor(0.2, 10.0) - (0.2_f64 * 3.0).exp()).abs() < 1e-12);
@@ -419,7 +419,7 @@ fn model_form_alone_spreads_the_annual_yield_by_its_sigma() {
         p.spread = 0.0;
     }
     let rep = run_uncertainty(&loaded, &opts, None).unwrap();
-    assert!(rep.model_form_source.contains("MODEL_FORM_RELATIVE_SD"));
+    assert!(rep.model_form_source.contains("validation devices"));
     let v = &rep.variants[0];
     let sigma = (v.annual_l_m2.p90 / v.annual_l_m2.p10).ln() / (2.0 * uncertainty::Z_P90);
     assert!(

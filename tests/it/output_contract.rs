@@ -216,6 +216,14 @@ fn strings(a: &[&str]) -> Vec<String> {
 fn every_format(label: &str, args: &[String], json: bool, csv: bool, tmp: &Path) {
     let text = run(&format!("{label} text"), args);
     assert!(!text.stdout.is_empty(), "{label}: no text output");
+    // No Rust internals in what people read (issue 17 item 6): no paths, no debug values.
+    let words = String::from_utf8_lossy(&text.stdout);
+    for internal in ["::", "Some(", "None", "{ ", "Ok(", "Err("] {
+        assert!(
+            !words.contains(internal),
+            "{label}: `{internal}` in the text output:\n{words}"
+        );
+    }
     if json {
         let mut a = args.to_vec();
         a.extend(strings(&["--format", "json"]));
@@ -293,7 +301,7 @@ fn every_command_and_format_gives_one_document_or_one_table() {
     for (tag, d, variant, scales) in &designs {
         // (name, arguments, JSON, CSV)
         let cases: Vec<(&str, Vec<String>, bool, bool)> = vec![
-            ("check", strings(&["check", d]), false, false),
+            ("check", strings(&["check", d]), true, false),
             ("climate", strings(&["climate", d]), true, true),
             ("simulate", strings(&["simulate", d]), true, true),
             (
@@ -484,4 +492,137 @@ fn a_depth_study_of_several_variants_is_one_document_and_one_table() {
     let csv = run("csv", &[base, strings(&["--format", "csv"])].concat());
     let (_, rows) = one_csv("csv", &csv.stdout);
     assert_eq!(rows.len(), 3 * variants.len());
+}
+
+#[test]
+fn check_json_lists_every_problem_with_its_place_and_exits_2() {
+    let out = stillbench()
+        .args([
+            "check",
+            "tests/data/bad/several-errors.toml",
+            "--format",
+            "json",
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let v = one_json("check", &out.stdout);
+    assert_eq!(v["valid"], false);
+    let problems = v["problems"].as_array().unwrap();
+    // tests/data/bad/several-errors.toml holds three out-of-range values.
+    assert_eq!(problems.len(), 3, "{v}");
+    assert_eq!(v["errors"], 3);
+    for p in problems {
+        assert_eq!(p["severity"], "error");
+        assert!(
+            p["line"].as_u64().is_some() && p["column"].as_u64().is_some(),
+            "{p}"
+        );
+        assert!(!p["field"].as_str().unwrap().is_empty(), "{p}");
+        assert!(p["message"].as_str().unwrap().contains("allowed"), "{p}");
+    }
+    assert_eq!(problems[0]["field"], "site.latitude_deg");
+}
+
+/// The number after `key` in `text` (the first one).
+fn number_after(text: &str, key: &str) -> f64 {
+    let at = text
+        .find(key)
+        .unwrap_or_else(|| panic!("no `{key}` in\n{text}"))
+        + key.len();
+    let tail: String = text[at..]
+        .trim_start()
+        .chars()
+        .take_while(|c| c.is_ascii_digit() || *c == '.' || *c == '-')
+        .collect();
+    tail.parse()
+        .unwrap_or_else(|_| panic!("no number after `{key}`: {tail}"))
+}
+
+#[test]
+fn headline_figures_agree_across_text_json_and_csv() {
+    // simulate: annual and worst-month yield of one variant on the southern demo.
+    let base = strings(&[
+        "simulate",
+        "designs/demo-highland-south.toml",
+        "--variant",
+        "north-basin",
+    ]);
+    let text = String::from_utf8(run("text", &base).stdout).unwrap();
+    let json = one_json(
+        "json",
+        &run(
+            "json",
+            &[base.clone(), strings(&["--format", "json"])].concat(),
+        )
+        .stdout,
+    );
+    let (header, rows) = one_csv(
+        "csv",
+        &run("csv", &[base, strings(&["--format", "csv"])].concat()).stdout,
+    );
+    let v = &json["variants"][0];
+    let annual_l_m2 = v["annual_l_m2"].as_f64().unwrap();
+    let worst = v["worst_month"]["l_m2_day"].as_f64().unwrap();
+    // Text rounds the annual figure to a litre and the worst month to 0.01 L/m²/day.
+    let text_annual = number_after(&text, "L (");
+    assert!(
+        (text_annual - annual_l_m2).abs() <= 0.5,
+        "{text_annual} vs {annual_l_m2}"
+    );
+    let text_worst = number_after(&text, " at ");
+    assert!(
+        (text_worst - worst).abs() <= 0.005,
+        "{text_worst} vs {worst}"
+    );
+    // CSV: the worst month is the smallest monthly yield (4 decimals), and the annual yield
+    // the sum over months of the daily yield times the days in the month.
+    let col = header.iter().position(|h| h == "l_m2_day").unwrap();
+    let daily: Vec<f64> = rows.iter().map(|r| r[col].parse().unwrap()).collect();
+    let csv_worst = daily.iter().copied().fold(f64::INFINITY, f64::min);
+    assert!((csv_worst - worst).abs() <= 5e-5, "{csv_worst} vs {worst}");
+    const DAYS: [f64; 12] = [
+        31.0, 28.0, 31.0, 30.0, 31.0, 30.0, 31.0, 31.0, 30.0, 31.0, 30.0, 31.0,
+    ];
+    let csv_annual: f64 = daily.iter().zip(DAYS).map(|(d, n)| d * n).sum();
+    assert!(
+        (csv_annual - annual_l_m2).abs() <= 0.02,
+        "{csv_annual} vs {annual_l_m2}"
+    );
+
+    // cost: the cost per litre and its currency.
+    let base = strings(&[
+        "cost",
+        "designs/demo-coast.toml",
+        "--variant",
+        "glass-basin",
+    ]);
+    let text = String::from_utf8(run("text", &base).stdout).unwrap();
+    let json = one_json(
+        "json",
+        &run(
+            "json",
+            &[base.clone(), strings(&["--format", "json"])].concat(),
+        )
+        .stdout,
+    );
+    let (header, rows) = one_csv(
+        "csv",
+        &run(
+            "csv",
+            &[base, strings(&["--format", "csv", "--table", "summary"])].concat(),
+        )
+        .stdout,
+    );
+    let c = &json["variants"][0]["cost"]["cost"];
+    let per_l = c["cost_per_litre"].as_f64().unwrap();
+    let at = |name: &str| &rows[0][header.iter().position(|h| h == name).unwrap()];
+    assert!((at("cost_per_l").parse::<f64>().unwrap() - per_l).abs() < 1e-12);
+    assert_eq!(at("currency"), c["currency"].as_str().unwrap());
+    // Text: "levelised … L/year: 0.0123 USD/L" to 4 decimals.
+    let text_per_l = number_after(&text, "L/year:");
+    assert!(
+        (text_per_l - per_l).abs() <= 5e-5,
+        "{text_per_l} vs {per_l}"
+    );
 }
