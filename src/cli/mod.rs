@@ -81,6 +81,27 @@ enum Command {
     /// Write the report: Markdown, a self-contained HTML page with charts, and every table as
     /// CSV and JSON, for a funder and a workshop.
     Report(report::ReportArgs),
+    /// Print a shell completion script (bash, zsh, fish, powershell, elvish) to standard
+    /// output.
+    #[command(after_help = "Examples:
+  stillbench completions bash > ~/.local/share/bash-completion/completions/stillbench
+  stillbench completions zsh > ~/.zfunc/_stillbench      (with fpath+=~/.zfunc in .zshrc)
+  stillbench completions fish > ~/.config/fish/completions/stillbench.fish
+  stillbench completions powershell >> $PROFILE")]
+    Completions {
+        /// The shell.
+        shell: clap_complete::Shell,
+    },
+    /// Print the manual page (roff, section 1) to standard output: stillbench's, or one
+    /// command's (`stillbench-simulate(1)`, with every option).
+    #[command(after_help = "Examples:
+  stillbench man > stillbench.1 && man ./stillbench.1
+  stillbench man simulate > stillbench-simulate.1
+  stillbench man | gzip > /usr/local/share/man/man1/stillbench.1.gz")]
+    Man {
+        /// The command whose page to print (without it, the overview page).
+        command: Option<String>,
+    },
 }
 
 /// Parse, run, print errors, return the exit code.
@@ -99,6 +120,8 @@ pub fn main() -> std::process::ExitCode {
         Command::Uncertainty(args) => uncertainty::run(&args),
         Command::Calibrate(args) => calibrate::run(&args),
         Command::Report(args) => report::run(&args),
+        Command::Completions { shell } => completions(shell),
+        Command::Man { command } => man_page(command.as_deref()),
     };
     match result {
         Ok(()) => std::process::ExitCode::from(ExitCode::Success as u8),
@@ -112,6 +135,61 @@ pub fn main() -> std::process::ExitCode {
             std::process::ExitCode::from(code as u8)
         }
     }
+}
+
+/// Write the completion script for `shell`, from the same definitions as `--help`.
+fn completions(shell: clap_complete::Shell) -> anyhow::Result<()> {
+    use clap::CommandFactory;
+    let mut out = Vec::new();
+    clap_complete::generate(shell, &mut Cli::command(), "stillbench", &mut out);
+    write_stdout(&out)
+}
+
+/// Write the man page (roff) of stillbench or of one of its commands, from the same
+/// definitions as `--help`.
+fn man_page(command: Option<&str>) -> anyhow::Result<()> {
+    use clap::CommandFactory;
+    let cli = Cli::command();
+    let page = match command {
+        None => cli,
+        Some(name) => {
+            let names: Vec<String> = cli
+                .get_subcommands()
+                .map(|c| c.get_name().to_owned())
+                .collect();
+            let Some(sub) = cli.find_subcommand(name) else {
+                return Err(
+                    stillbench::Error::Design(stillbench::design::DesignErrors(vec![
+                        stillbench::design::DesignIssue {
+                            file: std::path::PathBuf::from("(command line)"),
+                            line_col: None,
+                            path: "man COMMAND".into(),
+                            message: format!(
+                                "no command named `{name}`; the commands are: {}",
+                                names.join(", ")
+                            ),
+                        },
+                    ]))
+                    .into(),
+                );
+            };
+            sub.clone()
+                .display_name(format!("stillbench-{name}"))
+                .bin_name(format!("stillbench {name}"))
+                .version(stillbench::VERSION)
+        }
+    };
+    let mut out = Vec::new();
+    clap_mangen::Man::new(page).render(&mut out)?;
+    write_stdout(&out)
+}
+
+fn write_stdout(bytes: &[u8]) -> anyhow::Result<()> {
+    use std::io::Write;
+    let mut out = std::io::stdout().lock();
+    out.write_all(bytes)?;
+    out.flush()?;
+    Ok(())
 }
 
 /// Load a design file (or the built-in demo when `path` is `None`) and print its warnings.

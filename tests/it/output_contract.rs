@@ -626,3 +626,34 @@ fn headline_figures_agree_across_text_json_and_csv() {
         "{text_per_l} vs {per_l}"
     );
 }
+
+#[test]
+fn completions_and_man_pages_come_from_the_same_definitions_as_help() {
+    for shell in ["bash", "zsh", "fish", "powershell", "elvish"] {
+        let out = run(shell, &strings(&["completions", shell]));
+        let script = String::from_utf8(out.stdout).unwrap();
+        // Every command and a command's own option are offered.
+        for word in ["simulate", "uncertainty", "--depth-sweep", "--table"] {
+            assert!(script.contains(word), "{shell}: no `{word}`");
+        }
+    }
+    let page = String::from_utf8(run("man", &strings(&["man"])).stdout).unwrap();
+    assert!(page.starts_with(".ie") || page.starts_with(".TH"), "{page}");
+    assert!(page.contains(".TH stillbench 1"), "{page}");
+    for command in ["check", "climate", "simulate", "report", "completions"] {
+        assert!(page.contains(command), "no {command} in the man page");
+    }
+    let sim =
+        String::from_utf8(run("man simulate", &strings(&["man", "simulate"])).stdout).unwrap();
+    assert!(
+        sim.contains(".TH stillbench\\-simulate 1") || sim.contains(".TH stillbench-simulate 1"),
+        "{sim}"
+    );
+    assert!(
+        sim.contains("\\-\\-table") && sim.contains("\\-\\-hourly"),
+        "{sim}"
+    );
+    let bad = stillbench().args(["man", "simualte"]).output().unwrap();
+    assert_eq!(bad.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&bad.stderr).contains("simulate"));
+}
