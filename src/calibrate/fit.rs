@@ -207,6 +207,9 @@ pub struct Calibrator<'a> {
     groups: Vec<Group>,
     run: RunOptions,
     runs: AtomicUsize,
+    /// The highest `distillate_factor` that acts on this variant (the collected share of
+    /// every condensing surface capped at 1), capped at the design file's range.
+    distillate_upper: f64,
 }
 
 /// Reads one measured temperature of an hour.
@@ -282,10 +285,12 @@ impl<'a> Calibrator<'a> {
                 });
             }
         }
+        let distillate_upper = crate::stills::distillate_factor_upper(loaded, &variant, &weather)?;
         Ok(Calibrator {
             loaded,
             variant,
             weather,
+            distillate_upper,
             spinup,
             groups,
             run: RunOptions {
@@ -294,6 +299,16 @@ impl<'a> Calibrator<'a> {
             },
             runs: AtomicUsize::new(0),
         })
+    }
+
+    /// Bounds of the fit of `p` for this variant: the design file's range, with
+    /// `distillate_factor` ending where it stops acting.
+    pub fn bounds(&self, p: FitParam) -> (f64, f64) {
+        let (lo, hi) = p.bounds();
+        match p {
+            FitParam::DistillateFactor => (lo, hi.min(self.distillate_upper)),
+            _ => (lo, hi),
+        }
     }
 
     /// The variant as in the design.
@@ -433,7 +448,7 @@ impl LmProblem<'_, '_> {
         self.params
             .iter()
             .zip(x)
-            .map(|(p, xi)| to_p(*xi, p.bounds()))
+            .map(|(p, xi)| to_p(*xi, self.cal.bounds(*p)))
             .collect()
     }
 }
@@ -563,6 +578,10 @@ pub struct CalibrationReport {
     pub termination: String,
     /// Parameters at a bound, non-identifiable pairs, a failed minimisation.
     pub warnings: Vec<String>,
+    /// Why the fitted values cannot be stood behind (a parameter at a bound, parameters the
+    /// data cannot tell apart), each with what to fit instead; empty for a usable fit.
+    /// `stillbench calibrate` refuses to write such a fit unless forced.
+    pub unfit: Vec<String>,
     /// What reading the measured file found and did.
     pub data: super::measured::MeasuredSummary,
     /// Measured and modelled hourly distillate, for the time-series overlay.
@@ -730,7 +749,7 @@ pub fn calibrate_with(
     let mut x: Vec<f64> = params
         .iter()
         .zip(&start)
-        .map(|(p, v)| to_x(*v, p.bounds()))
+        .map(|(p, v)| to_x(*v, cal.bounds(*p)))
         .collect();
     let mut termination = String::new();
     let mut warnings = Vec::new();
@@ -768,7 +787,7 @@ pub fn calibrate_with(
         let values: Vec<f64> = params
             .iter()
             .zip(&x)
-            .map(|(p, xi)| to_p(*xi, p.bounds()))
+            .map(|(p, xi)| to_p(*xi, cal.bounds(*p)))
             .collect();
         let hours = cal.simulate(&params, &values)?;
         if pass + 1 < passes {
@@ -799,7 +818,7 @@ pub fn calibrate_with(
     let values: Vec<f64> = params
         .iter()
         .zip(&x)
-        .map(|(p, xi)| to_p(*xi, p.bounds()))
+        .map(|(p, xi)| to_p(*xi, cal.bounds(*p)))
         .collect();
     let best = cal.simulate(&params, &values)?;
     let r0 = cal.residuals(&best, &sigma);
@@ -807,7 +826,7 @@ pub fn calibrate_with(
     let cols: Vec<Result<Vec<f64>, Error>> = (0..k)
         .into_par_iter()
         .map(|j| {
-            let (lo, hi) = params[j].bounds();
+            let (lo, hi) = cal.bounds(params[j]);
             let h = 2e-3 * (hi - lo);
             let up = (values[j] + h).min(hi);
             let dn = (values[j] - h).max(lo);
@@ -835,16 +854,29 @@ pub fn calibrate_with(
     let jtj = jac.transpose() * &jac;
     let t = student_t_975(dof);
     let cov = jtj.clone().try_inverse().map(|m| m * s2);
+    let mut unfit = Vec::new();
+    let names = || {
+        params
+            .iter()
+            .map(|p| p.name())
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
     if cov.is_none() {
         warnings.push(
             "JᵀJ is singular: the fitted parameters cannot be told apart from these data; no \
              intervals"
                 .to_owned(),
         );
+        unfit.push(format!(
+            "{} cannot be told apart from these data (JᵀJ is singular); fit fewer of them \
+             (`--fit distillate_factor` alone, say), or add measured temperatures",
+            names()
+        ));
     }
     let mut parameters = Vec::with_capacity(k);
     for j in 0..k {
-        let (lo, hi) = params[j].bounds();
+        let (lo, hi) = cal.bounds(params[j]);
         let se = cov
             .as_ref()
             .map_or(f64::INFINITY, |c| c[(j, j)].max(0.0).sqrt());
@@ -852,9 +884,25 @@ pub fn calibrate_with(
         let at_bound = v - lo < 0.01 * (hi - lo) || hi - v < 0.01 * (hi - lo);
         if at_bound {
             warnings.push(format!(
-                "{} = {v:.4} is at a bound of [{lo}, {hi}]: the data push it beyond what the \
-                 model allows; look for a cause the factors do not cover",
+                "{} = {v:.4} is at a bound of [{lo:.3}, {hi:.3}]: the data push it beyond what \
+                 the model allows; look for a cause the factors do not cover",
                 params[j].name()
+            ));
+            let others: Vec<&str> = params
+                .iter()
+                .filter(|p| **p != params[j])
+                .map(|p| p.name())
+                .collect();
+            unfit.push(format!(
+                "{} = {v:.4} is at a bound of [{lo:.3}, {hi:.3}]; fit {} instead, and look \
+                 for what the factors do not cover (leaks, a shaded or dirty cover, a wrong \
+                 meter)",
+                params[j].name(),
+                if others.is_empty() {
+                    "another parameter".to_owned()
+                } else {
+                    others.join(", ")
+                }
             ));
         }
         parameters.push(FittedParameter {
@@ -883,6 +931,13 @@ pub fn calibrate_with(
                     warnings.push(format!(
                         "{} and {} correlate at {:.3}: not separately identifiable from these \
                          data (fit one of them, or measure temperatures)",
+                        params[a].name(),
+                        params[b].name(),
+                        correlation[a][b]
+                    ));
+                    unfit.push(format!(
+                        "{} and {} correlate at {:.3}: the data cannot tell them apart; fit \
+                         only one of them, or add measured temperatures",
                         params[a].name(),
                         params[b].name(),
                         correlation[a][b]
@@ -920,6 +975,7 @@ pub fn calibrate_with(
         model_runs: cal.runs(),
         termination,
         warnings,
+        unfit,
         data: measured.summary.clone(),
         overlay,
     })

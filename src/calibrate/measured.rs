@@ -199,11 +199,26 @@ pub fn load_measured(
     plane: Plane,
     footprint_m2: f64,
 ) -> Result<MeasuredRecord, Error> {
-    let bytes = std::fs::read(path).map_err(|e| Error::Io {
-        path: path.display().to_string(),
-        source: e,
+    // The measured file is the user's input: a missing or unreadable one is bad input.
+    let bytes = std::fs::read(path).map_err(|e| {
+        Error::Design(crate::design::DesignErrors(vec![issue(
+            path,
+            None,
+            "--measured",
+            format!("cannot read the measured file: {}", io_reason(&e)),
+        )]))
     })?;
     parse_measured_bytes(&bytes, path, columns, site, plane, footprint_m2)
+}
+
+/// What went wrong reading a file, in words (without the OS error number repeated).
+fn io_reason(e: &std::io::Error) -> String {
+    match e.kind() {
+        std::io::ErrorKind::NotFound => "no such file".into(),
+        std::io::ErrorKind::PermissionDenied => "permission denied".into(),
+        std::io::ErrorKind::IsADirectory => "it is a folder, not a file".into(),
+        _ => e.to_string(),
+    }
 }
 
 fn issue(path: &Path, line: Option<usize>, field: &str, message: String) -> DesignIssue {

@@ -200,7 +200,7 @@ pub fn write_text(report: &CalibrationReport, w: &mut dyn Write) -> io::Result<(
     for p in &report.parameters {
         writeln!(
             w,
-            "  {:<28} {:>8.4}  [{:.4}, {:.4}]  (start {:.4}, bounds {}…{}){}",
+            "  {:<28} {:>8.4}  [{:.4}, {:.4}]  (start {:.4}, bounds {:.3}…{:.3}){}",
             p.name,
             p.value,
             p.ci_low,

@@ -36,7 +36,8 @@ pub struct CalibrateArgs {
     /// `--force`). The charts go beside it as `<name>.parity.svg` and `<name>.series.svg`.
     #[arg(long)]
     pub out: Option<PathBuf>,
-    /// Overwrite existing output files.
+    /// Overwrite existing output files, and write the fit even when a parameter ended at a
+    /// bound or the data cannot tell the parameters apart (refused otherwise, exit 3).
     #[arg(long)]
     pub force: bool,
     /// Output format.
@@ -123,7 +124,23 @@ pub fn run(args: &CalibrateArgs) -> anyhow::Result<()> {
         ..FitSettings::default()
     };
     let report = calibrate::calibrate(&loaded, &args.variant, &measured, &settings)?;
+    let refuse = args.out.is_some() && !report.unfit.is_empty() && !args.force;
+    if refuse {
+        print_report(args, &report, None)?;
+        return Err(stillbench::Error::Model {
+            variant: args.variant.clone(),
+            at: String::new(),
+            reason: format!(
+                "the fit is not written: {} (pass --force to write it anyway)",
+                report.unfit.join("; ")
+            ),
+        }
+        .into());
+    }
     if let Some(out) = &args.out {
+        for u in &report.unfit {
+            eprintln!("warning: written with --force although {u}");
+        }
         if out.canonicalize().ok() == args.design.canonicalize().ok() && !args.force {
             return Err(stillbench::Error::Refused {
                 path: out.display().to_string(),
@@ -146,12 +163,21 @@ pub fn run(args: &CalibrateArgs) -> anyhow::Result<()> {
             w.write_all(series.as_bytes())
         })?;
     }
+    print_report(args, &report, args.out.as_deref())
+}
+
+/// Print the calibration report; `written` is the design file written, if any.
+fn print_report(
+    args: &CalibrateArgs,
+    report: &calibrate::CalibrationReport,
+    written: Option<&Path>,
+) -> anyhow::Result<()> {
+    use std::io::Write;
     let mut stdout = std::io::stdout().lock();
     match args.format {
         Format::Text => {
-            calibrate::report::write_text(&report, &mut stdout).context("writing the report")?;
-            if let Some(out) = &args.out {
-                use std::io::Write;
+            calibrate::report::write_text(report, &mut stdout).context("writing the report")?;
+            if let Some(out) = written {
                 writeln!(
                     stdout,
                     "\nWrote {} (and {}, {})",
@@ -162,7 +188,8 @@ pub fn run(args: &CalibrateArgs) -> anyhow::Result<()> {
             }
         }
         Format::Json => {
-            stillbench::output::write_document(&mut stdout, &report).context("writing JSON")?;
+            serde_json::to_writer_pretty(&mut stdout, report).context("writing JSON")?;
+            writeln!(stdout)?;
         }
     }
     Ok(())

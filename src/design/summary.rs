@@ -67,6 +67,43 @@ fn monthly(w: &mut dyn Write, m: &MonthlyClimate) -> io::Result<()> {
 }
 
 fn variant(w: &mut dyn Write, i: usize, v: &Variant) -> io::Result<()> {
+    variant_kind(w, i, v)?;
+    if let Some(c) = &v.calibration {
+        calibration(w, c)?;
+    }
+    Ok(())
+}
+
+/// The calibration factors a variant runs with and where they came from.
+fn calibration(w: &mut dyn Write, c: &super::Calibration) -> io::Result<()> {
+    let mut f = Vec::new();
+    for (name, x) in [
+        ("distillate_factor", c.distillate_factor),
+        ("cover_transmittance_factor", c.cover_transmittance_factor),
+        ("cover_emissivity", c.cover_emissivity),
+        ("base_loss_factor", c.base_loss_factor),
+    ] {
+        if let Some(x) = x {
+            f.push(format!("{name} {x}"));
+        }
+    }
+    if f.is_empty() {
+        f.push("none (neutral)".into());
+    }
+    let from = match (&c.fitted_from, &c.fitted_on) {
+        (Some(a), Some(b)) => format!("fitted from {a} on {b}"),
+        (Some(a), None) => format!("fitted from {a}"),
+        (None, Some(b)) => format!("fitted on {b}"),
+        (None, None) => "no source given (fitted_from, fitted_on)".into(),
+    };
+    let note = c
+        .note
+        .as_deref()
+        .map_or_else(String::new, |n| format!("; note: {n}"));
+    writeln!(w, "     calibration: {}; {from}{note}", f.join(", "))
+}
+
+fn variant_kind(w: &mut dyn Write, i: usize, v: &Variant) -> io::Result<()> {
     writeln!(
         w,
         "  {}. {} — {}: footprint {:.2} m² ({} × {} m), cover {:.2} m² at {}° facing {}°, cover \"{}\"",

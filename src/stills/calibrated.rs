@@ -67,6 +67,27 @@ impl std::fmt::Debug for dyn StillModel {
     }
 }
 
+/// The `distillate_factor` above which it has no effect on `net`: the collected share of
+/// every enclosure link is capped at 1, so the factor acts up to 1 / (the smallest collected
+/// share); infinite for a network without a collecting link.
+pub fn distillate_factor_ceiling(net: &Network) -> f64 {
+    let smallest = net
+        .links()
+        .iter()
+        .filter_map(|l| match l.kind {
+            LinkKind::Enclosure {
+                collected_fraction, ..
+            } if collected_fraction > 0.0 => Some(collected_fraction),
+            _ => None,
+        })
+        .fold(f64::INFINITY, f64::min);
+    if smallest.is_finite() {
+        1.0 / smallest
+    } else {
+        f64::INFINITY
+    }
+}
+
 fn scales_base(net: &Network, path: LossPath, a: End, b: End) -> bool {
     let to_sink = [a, b].iter().any(|e| match e {
         End::Boundary(id) => net

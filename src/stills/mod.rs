@@ -629,13 +629,51 @@ pub fn build_model(
         .as_ref()
         .map(|c| c.factors())
         .unwrap_or_default();
-    Ok(build_uncalibrated(loaded, variant, weather)?.map(|m| {
-        if factors.is_neutral() {
-            m
-        } else {
-            Box::new(CalibratedModel::new(m, factors)) as Box<dyn StillModel>
-        }
+    let Some(m) = build_uncalibrated(loaded, variant, weather)? else {
+        return Ok(None);
+    };
+    let ceiling = calibrated::distillate_factor_ceiling(m.network());
+    if factors.distillate_factor > ceiling * (1.0 + 1e-9) {
+        let i = loaded
+            .design
+            .variants
+            .iter()
+            .position(|v| v.name == variant.name)
+            .map_or(1, |i| i + 1);
+        return Err(Error::Design(crate::design::DesignErrors(vec![
+            crate::design::DesignIssue {
+                file: loaded.source.clone(),
+                line_col: None,
+                path: format!("variant[{i}].calibration.distillate_factor"),
+                message: format!(
+                    "{} has no effect above {ceiling:.3} for this variant: every condensing \
+                     surface then already collects all it condenses; allowed [{}, {ceiling:.3}]",
+                    factors.distillate_factor,
+                    crate::design::DISTILLATE_FACTOR_RANGE.0
+                ),
+            },
+        ])));
+    }
+    Ok(Some(if factors.is_neutral() {
+        m
+    } else {
+        Box::new(CalibratedModel::new(m, factors)) as Box<dyn StillModel>
     }))
+}
+
+/// The highest `distillate_factor` that still acts on a variant's model (see
+/// [`calibrated::distillate_factor_ceiling`]), capped at the design file's range.
+pub fn distillate_factor_upper(
+    loaded: &LoadedDesign,
+    variant: &Variant,
+    weather: &SiteWeather,
+) -> Result<f64, Error> {
+    let hi = crate::design::DISTILLATE_FACTOR_RANGE.1;
+    Ok(
+        build_uncalibrated(loaded, variant, weather)?.map_or(hi, |m| {
+            calibrated::distillate_factor_ceiling(m.network()).min(hi)
+        }),
+    )
 }
 
 /// The model of a variant as its kind builds it (a calibrated `cover_emissivity` is already

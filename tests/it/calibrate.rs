@@ -759,23 +759,32 @@ fn calibrate_command_writes_a_calibrated_design_and_charts() {
     std::fs::write(&design_path, &text).unwrap();
     let out = dir.path().join("pilot-calibrated.toml");
     let measured = data_dir().join("measured/pilot-demo.csv");
-    let run = |extra: &[&str]| {
+    let run_fit = |fit: &str, extra: &[&str]| {
         assert_cmd::Command::cargo_bin("stillbench")
             .unwrap()
             .arg("calibrate")
             .arg(&design_path)
             .args(["--variant", "pilot", "--measured"])
             .arg(&measured)
-            .args([
-                "--fit",
-                "distillate_factor,cover_transmittance_factor",
-                "--out",
-            ])
+            .args(["--fit", fit, "--out"])
             .arg(&out)
             .args(extra)
             .output()
             .unwrap()
     };
+    // On this invented record the two factors together push the transmittance factor to its
+    // bound: the fit is shown but not written (exit 3), with what to fit instead.
+    let both = "distillate_factor,cover_transmittance_factor";
+    let refused = run_fit(both, &[]);
+    let err = String::from_utf8_lossy(&refused.stderr);
+    assert_eq!(refused.status.code(), Some(3), "{err}");
+    assert!(
+        err.contains("at a bound") && err.contains("fit distillate_factor instead"),
+        "{err}"
+    );
+    assert!(String::from_utf8_lossy(&refused.stdout).contains("AT BOUND"));
+    assert!(!out.exists(), "a refused fit writes nothing");
+    let run = |extra: &[&str]| run_fit("distillate_factor", extra);
     let first = run(&[]);
     let stdout = String::from_utf8_lossy(&first.stdout);
     assert!(
@@ -797,7 +806,7 @@ fn calibrate_command_writes_a_calibrated_design_and_charts() {
     // The new design loads and carries the factors.
     let reloaded = design::load_design(&out).unwrap();
     let c = reloaded.design.variants[0].calibration.clone().unwrap();
-    assert!(c.distillate_factor.is_some() && c.cover_transmittance_factor.is_some());
+    assert!(c.distillate_factor.is_some());
     assert!(c.measured.is_some(), "the column mapping survives");
     for chart in ["pilot-calibrated.parity.svg", "pilot-calibrated.series.svg"] {
         let svg = std::fs::read_to_string(dir.path().join(chart)).unwrap();
@@ -810,7 +819,72 @@ fn calibrate_command_writes_a_calibrated_design_and_charts() {
     // JSON carries the report.
     let json = run(&["--force", "--format", "json"]);
     let v: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
-    assert_eq!(v["parameters"].as_array().unwrap().len(), 2);
+    assert_eq!(v["parameters"].as_array().unwrap().len(), 1);
+    // --force writes the refused fit, and says what it overrode.
+    let forced = run_fit(both, &["--force"]);
+    assert!(forced.status.success());
+    assert!(String::from_utf8_lossy(&forced.stderr).contains("written with --force although"));
+    // `check` shows the calibration the design now runs with and where it came from.
+    let chk = assert_cmd::Command::cargo_bin("stillbench")
+        .unwrap()
+        .arg("check")
+        .arg(&out)
+        .output()
+        .unwrap();
+    let text = String::from_utf8_lossy(&chk.stdout);
+    assert!(chk.status.success(), "{text}");
+    assert!(
+        text.contains("calibration: distillate_factor")
+            && text.contains("fitted from pilot-demo.csv on"),
+        "{text}"
+    );
+    // A measured file that is not there is bad input (exit 2) named once.
+    let missing = assert_cmd::Command::cargo_bin("stillbench")
+        .unwrap()
+        .arg("calibrate")
+        .arg(&design_path)
+        .args(["--variant", "pilot", "--measured", "no-such-pilot.csv"])
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&missing.stderr);
+    assert_eq!(missing.status.code(), Some(2), "{err}");
+    assert!(
+        err.contains("no-such-pilot.csv: --measured: cannot read the measured file: no such file"),
+        "{err}"
+    );
+    assert_eq!(err.matches("no such file").count(), 1, "{err}");
+}
+
+#[test]
+fn distillate_factor_is_bounded_where_it_acts() {
+    // The collected share of every condensing surface is capped at 1, so the factor acts up
+    // to 1 / (the smallest collected share): for the demo glass basin, whose kind collects
+    // less than all it condenses, the ceiling lies between 1 and the file's 1.5.
+    let loaded = demo();
+    let weather = stillbench::stills::site_weather(&loaded).unwrap();
+    let v = &loaded.design.variants[0];
+    let hi = stillbench::stills::distillate_factor_upper(&loaded, v, &weather).unwrap();
+    assert!(hi > 1.0 && hi < 1.5, "{hi}");
+    // Yield rises with the factor all the way up to the ceiling.
+    let at = |f: f64| {
+        let c = Calibration {
+            distillate_factor: Some(f),
+            ..Calibration::default()
+        };
+        one_day(&loaded, &with_cal(v, c), &weather).l_day
+    };
+    assert!(at(hi) > at(0.5 * (1.0 + hi)) && at(0.5 * (1.0 + hi)) > at(1.0));
+    // A design asking for more is refused, by `check` as by a run, naming the field.
+    let c = Calibration {
+        distillate_factor: Some(hi + 0.05),
+        ..Calibration::default()
+    };
+    let e = stillbench::stills::build_model(&loaded, &with_cal(v, c), &weather).err();
+    let msg = e.map(|e| e.to_string()).unwrap_or_default();
+    assert!(
+        msg.contains("variant[1].calibration.distillate_factor") && msg.contains("no effect above"),
+        "{msg}"
+    );
 }
 
 #[test]
@@ -861,6 +935,11 @@ fn distillate_alone_cannot_separate_collection_from_transmittance() {
         "{:?}",
         r.warnings
     );
+    assert!(
+        r.unfit.iter().any(|u| u.contains("fit only one of them")),
+        "such a fit is not written without --force: {:?}",
+        r.unfit
+    );
     // Daily statistics are reported beside the hourly ones.
     assert!(
         r.statistics
@@ -896,6 +975,7 @@ fn write_back_adds_a_calibration_table_to_the_right_variant_and_keeps_the_rest()
         model_runs: 0,
         termination: String::new(),
         warnings: Vec::new(),
+        unfit: Vec::new(),
         data: calibrate::MeasuredSummary::default(),
         overlay: Vec::new(),
     };
