@@ -4,12 +4,11 @@
 //! stochastic weather years; their capital, land (rows spaced against noon shading), storage
 //! for runs of low-output days, and the rain the covers would catch.
 
-use std::io::Write;
 use std::path::PathBuf;
 
 use stillbench::compare::size::{
-    self, DEFAULT_CONFIDENCE, DEFAULT_YEARS, DRINKING_AND_COOKING_L_PER_PERSON_DAY,
-    DRINKING_L_PER_PERSON_DAY, SizeMethod, SizeOptions, SizeReport,
+    self, DEFAULT_CONFIDENCE, DEFAULT_YEARS, DRINKING_L_PER_PERSON_DAY, SizeMethod, SizeOptions,
+    SizeReport,
 };
 use stillbench::design::{DesignErrors, DesignIssue};
 
@@ -165,7 +164,7 @@ pub fn run(args: &SizeArgs) -> anyhow::Result<()> {
     let mut buf = Vec::new();
     match args.format {
         Format::Text => {
-            write_text(&mut buf, &loaded.design.project.title, &demand_note, &rep)?;
+            render::write_size_text(&mut buf, &loaded.design.project.title, &demand_note, &rep)?;
             stillbench::cautions::write_cautions(&mut buf)?;
         }
         Format::Json => {
@@ -188,107 +187,4 @@ pub fn run(args: &SizeArgs) -> anyhow::Result<()> {
         Format::Csv => return args.export.write_tables(&plan, &render::size_tables(&rep)),
     }
     args.export.write_document(&buf)
-}
-
-/// Write the report as text.
-pub fn write_text(
-    out: &mut impl Write,
-    title: &str,
-    demand_note: &str,
-    rep: &SizeReport,
-) -> std::io::Result<()> {
-    let o = &rep.options;
-    let cur = &rep.currency;
-    writeln!(out, "{title}\n")?;
-    writeln!(out, "demand: {demand_note}")?;
-    writeln!(
-        out,
-        "met in the worst month in at least {:.0} % of {} stochastic years (seed {}), {}",
-        o.confidence * 100.0,
-        o.years,
-        o.seed,
-        match rep.method {
-            SizeMethod::Response => "from each variant's validated daily response model",
-            SizeMethod::Full => "each year simulated hour by hour (--full)",
-        }
-    )?;
-    writeln!(
-        out,
-        "per person (Sphere Handbook 2018, from memory): drinking {DRINKING_L_PER_PERSON_DAY} \
-         L/day, drinking and cooking {DRINKING_AND_COOKING_L_PER_PERSON_DAY} L/day\n"
-    )?;
-    writeln!(
-        out,
-        "{:<20} {:>6} {:>10} {:>12} {:>6} {:>12} {:>6} {:>8} {:>9} {:>10} {:>10} {:>8} {:>8}",
-        "variant",
-        "units",
-        "area m²",
-        format!("capital {cur}"),
-        "worst",
-        "array L/day",
-        "met %",
-        "sun noon",
-        "pitch m",
-        "land m²",
-        "storage L",
-        "low days",
-        "op h/day"
-    )?;
-    for s in &rep.sized {
-        writeln!(
-            out,
-            "{:<20} {:>6} {:>10.1} {:>12.0} {:>6} {:>12.1} {:>6.0} {:>7.1}° {:>9.2} {:>10.1} {:>10.0} {:>8} {:>8.1}",
-            s.name,
-            s.units,
-            s.footprint_m2,
-            s.capital,
-            s.worst_month,
-            s.array_worst_month_l_day,
-            s.met_fraction * 100.0,
-            s.noon_elevation_deg,
-            s.row_pitch_m,
-            s.land_m2,
-            s.storage_l,
-            s.longest_low_run_days,
-            s.operator_h_per_day
-        )?;
-    }
-    let with_rain: Vec<_> = rep.sized.iter().filter(|s| !s.rain.is_empty()).collect();
-    if !with_rain.is_empty() {
-        writeln!(
-            out,
-            "\nRain the covers would catch (not distillate; runoff coefficient {}, common \
-             practice), L/month:",
-            rep.runoff_coefficient
-        )?;
-        write!(out, "{:<20}", "variant")?;
-        for m in 1..=12 {
-            write!(out, " {m:>7}")?;
-        }
-        writeln!(out)?;
-        for s in with_rain {
-            write!(out, "{:<20}", s.name)?;
-            for r in &s.rain {
-                write!(out, " {:>7.0}", r.caught_l)?;
-            }
-            writeln!(out)?;
-        }
-    }
-    writeln!(
-        out,
-        "\nworst: the month that set the size; met %: share of the simulated years the array \
-         meets;\nsun noon: sun elevation at noon on the worst month's average day; pitch: plan \
-         depth + the\nnoon shadow of the row's top edge; land: units × length × pitch; storage: \
-         the tank that\ncarries the deficit of low-output days (array output below the demand), \
-         at the confidence;\nlow days: the longest run of low-output days, at the confidence;\nop h/day: \
-         the operator's time a day for the array (a daily round plus each unit's tasks, \
-         [costs.operator])."
-    )?;
-    if !rep.skipped.is_empty() {
-        writeln!(out, "\nNot sized:")?;
-        for s in &rep.skipped {
-            writeln!(out, "  {}: {}", s.name, s.reason)?;
-        }
-    }
-    Ok(())
 }

@@ -2,10 +2,9 @@
 //! [--target annual|worst-month] [--format text|json|csv]`: a parametric study of one or two
 //! numeric fields of one variant, and the point best for the target.
 
-use std::io::Write;
 use std::path::PathBuf;
 
-use stillbench::compare::sweep::{self, BadSpec, ParamSpec, SweepError, SweepResult, Target};
+use stillbench::compare::sweep::{self, BadSpec, ParamSpec, SweepError, Target};
 use stillbench::design::{DesignErrors, DesignIssue};
 use stillbench::stills::RunOptions;
 
@@ -120,7 +119,7 @@ pub fn run(args: &SweepArgs) -> anyhow::Result<()> {
     };
     let mut buf = Vec::new();
     match args.format {
-        Format::Text => write_text(&mut buf, &res)?,
+        Format::Text => render::write_sweep_text(&mut buf, &res)?,
         Format::Json => stillbench::output::write_document(&mut buf, &res)?,
         Format::Csv => {}
     }
@@ -142,113 +141,6 @@ pub fn run(args: &SweepArgs) -> anyhow::Result<()> {
             reason: format!("no sweep point could be simulated trustworthily: {reason}"),
         }
         .into());
-    }
-    Ok(())
-}
-
-fn fmt_opt(x: Option<f64>, width: usize, decimals: usize) -> String {
-    x.map_or_else(
-        || format!("{:>width$}", "–"),
-        |v| format!("{v:>width$.decimals$}"),
-    )
-}
-
-/// Write the sweep as text.
-pub fn write_text(out: &mut impl Write, res: &SweepResult) -> std::io::Result<()> {
-    writeln!(
-        out,
-        "sweep of `{}`, maximising {}\n",
-        res.variant,
-        res.target.label()
-    )?;
-    let mut head = String::new();
-    for a in &res.axes {
-        head.push_str(&format!("{:>w$}  ", a.field, w = a.field.len().max(8)));
-    }
-    writeln!(
-        out,
-        "{head}{:>10}  {:>14}  {:>11}  best  note",
-        "L/m²/year", "worst L/m²/day", "worst month"
-    )?;
-    for (i, p) in res.points.iter().enumerate() {
-        let mut row = String::new();
-        for (a, x) in res.axes.iter().zip(&p.values) {
-            row.push_str(&format!("{x:>w$}  ", w = a.field.len().max(8)));
-        }
-        writeln!(
-            out,
-            "{row}{}  {}  {:>11}  {:<4}  {}",
-            fmt_opt(p.annual_l_m2, 10, 0),
-            fmt_opt(p.worst_month_l_m2_day, 14, 3),
-            p.worst_month.map_or_else(|| "–".into(), |m| m.to_string()),
-            if res.best == Some(i) { "*" } else { "" },
-            p.failed
-                .as_deref()
-                .map_or_else(String::new, |f| format!("not simulated: {f}"))
-        )?;
-    }
-    if let [a, b] = res.axes.as_slice() {
-        writeln!(
-            out,
-            "\n{} by {} (rows) and {} (columns):",
-            res.target.label(),
-            a.field,
-            b.field
-        )?;
-        let mut line = format!("{:>12}", "");
-        for y in &b.values {
-            line.push_str(&format!("  {y:>9}"));
-        }
-        writeln!(out, "{line}")?;
-        for (r, x) in a.values.iter().enumerate() {
-            let mut line = format!("{x:>12}");
-            for c in 0..b.values.len() {
-                let v = res
-                    .points
-                    .get(r * b.values.len() + c)
-                    .and_then(|p| p.target_value(res.target));
-                let d = if res.target == Target::Annual { 0 } else { 3 };
-                line.push_str(&format!("  {}", fmt_opt(v, 9, d)));
-            }
-            writeln!(out, "{line}")?;
-        }
-    }
-    writeln!(out)?;
-    match res.best.and_then(|b| res.points.get(b)) {
-        Some(p) => {
-            let at: Vec<String> = res
-                .axes
-                .iter()
-                .zip(&p.values)
-                .map(|(a, x)| format!("{} = {x}", a.field))
-                .collect();
-            writeln!(
-                out,
-                "best for {}: {} — {:.0} L/m²/year, worst month {:.3} L/m²/day (month {})",
-                res.target.label(),
-                at.join(", "),
-                p.annual_l_m2.unwrap_or(f64::NAN),
-                p.worst_month_l_m2_day.unwrap_or(f64::NAN),
-                p.worst_month.unwrap_or(0)
-            )?;
-            for e in &res.edges {
-                writeln!(
-                    out,
-                    "note: the best point is at the {} end of the {} range ({}); the optimum \
-                     may lie beyond it — widen the range",
-                    e.end, e.field, e.value
-                )?;
-            }
-        }
-        None => writeln!(out, "no point could be simulated trustworthily")?,
-    }
-    let failed = res.points.iter().filter(|p| p.failed.is_some()).count();
-    if failed > 0 {
-        writeln!(
-            out,
-            "{failed} of {} points not simulated (see the notes above)",
-            res.points.len()
-        )?;
     }
     Ok(())
 }

@@ -6,10 +6,10 @@ use std::io::{IsTerminal, Write};
 use std::path::PathBuf;
 
 use indicatif::{ProgressBar, ProgressDrawTarget, ProgressStyle};
-use stillbench::compare::uncertainty::{
-    DEFAULT_SAMPLES, UncertaintyOptions, UncertaintyReport, Z_P90,
-};
-use stillbench::compare::{Percentiles, render, run_uncertainty};
+/// The percentile table (also printed by `compare --samples`).
+pub use stillbench::compare::render::write_percentiles;
+use stillbench::compare::uncertainty::{DEFAULT_SAMPLES, UncertaintyOptions, UncertaintyReport};
+use stillbench::compare::{render, run_uncertainty};
 use stillbench::design::LoadedDesign;
 
 use super::export::{ExportArgs, Plan};
@@ -114,7 +114,7 @@ pub fn run(args: &UncertaintyArgs) -> anyhow::Result<()> {
     match args.format {
         Format::Text => {
             writeln!(buf, "{}\n", loaded.design.project.title)?;
-            write_text(&mut buf, &rep)?;
+            render::write_uncertainty_text(&mut buf, &rep)?;
             stillbench::cautions::write_cautions(&mut buf)?;
         }
         Format::Json => {
@@ -139,123 +139,4 @@ pub fn run(args: &UncertaintyArgs) -> anyhow::Result<()> {
         }
     }
     args.export.write_document(&buf)
-}
-
-fn p3(p: &Percentiles, decimals: usize) -> String {
-    format!(
-        "{:.d$} / {:.d$} / {:.d$}",
-        p.p10,
-        p.p50,
-        p.p90,
-        d = decimals
-    )
-}
-
-/// The percentile table (also printed by `compare --samples`).
-pub fn write_percentiles(out: &mut impl Write, rep: &UncertaintyReport) -> std::io::Result<()> {
-    writeln!(
-        out,
-        "Monte Carlo: {} samples, seed {}, {} weather, model-form SD {:.0} % (P10 / P50 / P90)",
-        rep.samples,
-        rep.seed,
-        if rep.stochastic_weather {
-            "stochastic"
-        } else {
-            "average-day"
-        },
-        rep.model_form_sd * 100.0
-    )?;
-    writeln!(
-        out,
-        "{:<16} {:>8} {:>22} {:>20} {:>8} {:>20} {:>20}",
-        "variant",
-        "det.",
-        "L/m²/year",
-        "L/day (year mean)",
-        "det.",
-        "worst month L/m²/day",
-        "worst month L/day"
-    )?;
-    for v in &rep.variants {
-        writeln!(
-            out,
-            "{:<16} {:>8.0} {:>22} {:>20} {:>8.2} {:>20} {:>20}",
-            v.name,
-            v.deterministic_annual_l_m2,
-            p3(&v.annual_l_m2, 0),
-            p3(&v.mean_l_day, 1),
-            v.deterministic_worst_month_l_m2_day,
-            p3(&v.worst_month_l_m2_day, 2),
-            p3(&v.worst_month_l_day, 1)
-        )?;
-    }
-    writeln!(
-        out,
-        "det. = deterministic (monthly average days, nominal parameters), as `simulate` and \
-         `compare` report it."
-    )?;
-    for v in &rep.variants {
-        for n in &v.notes {
-            writeln!(out, "note: {}: {n}", v.name)?;
-        }
-    }
-    Ok(())
-}
-
-/// Write the whole report as text.
-pub fn write_text(out: &mut impl Write, rep: &UncertaintyReport) -> std::io::Result<()> {
-    write_percentiles(out, rep)?;
-    writeln!(out, "\nUncertain parameters (low = P10, high = P90):")?;
-    writeln!(
-        out,
-        "  {:<24} {:<40} {:>8} {:>8}  source",
-        "parameter", "distribution", "low", "high"
-    )?;
-    for p in &rep.parameters {
-        writeln!(
-            out,
-            "  {:<24} {:<40} {:>8.3} {:>8.3}  {}",
-            p.key, p.distribution, p.low, p.high, p.source
-        )?;
-    }
-    writeln!(
-        out,
-        "  {:<24} {:<40} {:>8.3} {:>8.3}  {}",
-        "model form (per variant)",
-        format!("lognormal factor, median 1, σ(ln) {:.3}", rep.model_form_sd),
-        (-Z_P90 * rep.model_form_sd).exp(),
-        (Z_P90 * rep.model_form_sd).exp(),
-        rep.model_form_source
-    )?;
-    writeln!(
-        out,
-        "  Offsets add to the design or library value; multipliers scale it. Vapour leakage does \
-         not apply to a multi-effect still, insulation only where the variant has some."
-    )?;
-    writeln!(
-        out,
-        "\nSensitivity: annual yield at the parameter's low and high value, others nominal \
-         [L/m²/year], largest swing first:"
-    )?;
-    for v in &rep.sensitivity.variants {
-        writeln!(out, "  {} (nominal {:.0}):", v.name, v.nominal_annual_l_m2)?;
-        for b in &v.bars {
-            writeln!(
-                out,
-                "    {:<24} {:>7.0} → {:>7.0}  ({:+.0}, {:.1} %)",
-                b.parameter,
-                b.low_annual_l_m2,
-                b.high_annual_l_m2,
-                b.change_l_m2,
-                b.swing_fraction * 100.0
-            )?;
-        }
-    }
-    if !rep.skipped.is_empty() {
-        writeln!(out, "\nNo figures:")?;
-        for s in &rep.skipped {
-            writeln!(out, "  {}: {}", s.name, s.reason)?;
-        }
-    }
-    writeln!(out)
 }

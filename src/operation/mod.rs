@@ -8,6 +8,7 @@
 //! driver's job, not the variant's.
 
 mod controller;
+pub mod render;
 mod sweep;
 
 use serde::Serialize;
