@@ -196,18 +196,32 @@ pub fn write_text(
         "== {} ({}) — footprint {:.2} m², cover {:.2} m²",
         r.variant, r.kind, r.footprint_m2, r.cover_area_m2
     )?;
-    writeln!(out, "\nBill of materials ({cur}):")?;
+    let units = r.bom.units;
+    writeln!(
+        out,
+        "\nBill of materials ({cur}), one unit built alone{}:",
+        if units > 1 {
+            format!("; share: one unit's share of the {units} units' stock nested together")
+        } else {
+            String::new()
+        }
+    )?;
     for l in &r.bom.lines {
         let (g, gu) = l.amount.value_unit();
         writeln!(
             out,
-            "  {:<28} {:<24} {:>9.3} {:<6} × {:>8.2} = {:>9.2}{}",
+            "  {:<28} {:<24} {:>9.3} {:<6} × {:>8.2} = {:>9.2}{}{}",
             l.part,
             l.item,
             l.quantity,
             l.unit,
             l.unit_price,
             l.cost,
+            if units > 1 {
+                format!("  share {:>8.2}", l.unit_share_cost)
+            } else {
+                String::new()
+            },
             if l.local { "" } else { "  [NOT LOCAL]" }
         )?;
         writeln!(
@@ -216,7 +230,17 @@ pub fn write_text(
             l.formula, l.conversion
         )?;
     }
-    writeln!(out, "  materials total {:.2} {cur}", r.bom.materials_cost())?;
+    if units > 1 {
+        writeln!(
+            out,
+            "  materials total {:.2} {cur} alone; share {:.2} {cur} ({:.2} {cur} for {units} units)",
+            r.bom.materials_cost(),
+            r.bom.unit_share_materials_cost(),
+            r.bom.installation_materials_cost()
+        )?;
+    } else {
+        writeln!(out, "  materials total {:.2} {cur}", r.bom.materials_cost())?;
+    }
     if !r.bom.unavailable.is_empty() {
         writeln!(out, "\nNot sold locally (costed with import):")?;
         for u in &r.bom.unavailable {
@@ -248,7 +272,7 @@ pub fn write_text(
             )?;
         }
     }
-    writeln!(out, "\nCut list:")?;
+    writeln!(out, "\nCut list (one unit):")?;
     for c in &r.bom.cuts {
         if let Some(p) = &c.sheets {
             writeln!(
@@ -292,6 +316,33 @@ pub fn write_text(
             )?;
         }
     }
+    if units > 1 {
+        writeln!(
+            out,
+            "\nStock for the installation ({units} units' parts nested together, offcuts shared; \
+             batches of at most {} units):",
+            economics::bom::NEST_BATCH_UNITS
+        )?;
+        for c in &r.bom.cuts {
+            let n = &c.installation;
+            let (what, unit) = if c.sheets.is_some() {
+                ("sheet(s)", "m²")
+            } else {
+                ("bar(s)", "m")
+            };
+            writeln!(
+                out,
+                "  {} on {}: {} {what}, bought {:.1} {unit} (bought unit by unit: {:.1} {unit}), \
+                 waste {:.0} %",
+                c.part,
+                c.item,
+                n.pieces,
+                n.stock,
+                n.per_unit_stock,
+                n.waste_fraction() * 100.0
+            )?;
+        }
+    }
     writeln!(
         out,
         "  methods: sheets — {}; bars — {}",
@@ -327,13 +378,32 @@ pub fn write_text(
     writeln!(out, "\nCost summary ({cur}):")?;
     writeln!(
         out,
-        "  materials {:.2} + labour {:.1} h = {:.2}",
-        c.materials, c.labour_h, c.labour_cost
+        "  materials {:.2}{} + labour {:.1} h = {:.2}",
+        c.materials,
+        if c.units > 1 {
+            format!(
+                " (one unit's share of the {} units' nested stock; {:.2} for a unit alone)",
+                c.units, c.single_unit_materials
+            )
+        } else {
+            String::new()
+        },
+        c.labour_h,
+        c.labour_cost
     )?;
     writeln!(
         out,
-        "  capital {:.2} ({:.2} per m² of footprint)",
-        c.capital, c.capital_per_m2
+        "  capital {:.2} per unit ({:.2} per m² of footprint){}",
+        c.capital,
+        c.capital_per_m2,
+        if c.units > 1 {
+            format!(
+                "; {:.2} for the {} units (a unit alone {:.2})",
+                c.installation_capital, c.units, c.single_unit_capital
+            )
+        } else {
+            String::new()
+        }
     )?;
     for rep in &c.replacements {
         writeln!(
@@ -444,6 +514,9 @@ fn tables(reports: &[(VariantCost, Vec<SubstituteRun>)]) -> Vec<Table> {
             "currency",
             "local",
             "lifetime_years",
+            "units",
+            "installation_quantity",
+            "unit_share_cost",
         ],
     );
     let mut summary = Table::new(
@@ -478,6 +551,10 @@ fn tables(reports: &[(VariantCost, Vec<SubstituteRun>)]) -> Vec<Table> {
             "complexity_points",
             "all_local",
             "yield_note",
+            "units",
+            "single_unit_materials",
+            "single_unit_capital",
+            "installation_capital",
         ],
     );
     let mut cuts = Table::new(
@@ -523,6 +600,9 @@ fn tables(reports: &[(VariantCost, Vec<SubstituteRun>)]) -> Vec<Table> {
                 text(&c.currency),
                 json!(l.local),
                 json!(l.lifetime_years),
+                json!(r.bom.units),
+                full(l.installation_quantity),
+                full(l.unit_share_cost),
             ]);
         }
         summary.push(vec![
@@ -555,6 +635,10 @@ fn tables(reports: &[(VariantCost, Vec<SubstituteRun>)]) -> Vec<Table> {
             full(r.complexity.score),
             json!(r.all_local),
             text(c.yield_note.clone().unwrap_or_default()),
+            json!(c.units),
+            full(c.single_unit_materials),
+            full(c.single_unit_capital),
+            full(c.installation_capital),
         ]);
         for cut in &r.bom.cuts {
             if let Some(p) = &cut.sheets {

@@ -7,7 +7,8 @@
 //!   output meets the demand, ⌈demand ÷ worst-month L/day of one unit⌉; the array size is the
 //!   ⌈confidence · years⌉-th smallest of those (so at least the confidence fraction of the
 //!   simulated years are met — an empirical quantile, [`order_statistic_index`]);
-//! * **capital** — units × the variant's capital ([`crate::economics::cost_variant`]);
+//! * **capital** — the array's capital with every unit's parts nested onto stock together
+//!   (offcuts shared across units; [`crate::economics::cost_variant_for_units`]);
 //! * **operator time** — the daily round plus units × each unit's tasks
 //!   ([`crate::economics::operator`]);
 //! * **land** — rows facing the equator, spaced so that no row shades the next at solar noon
@@ -418,9 +419,9 @@ pub struct VariantSize {
     pub unit_footprint_m2: f64,
     /// Footprint of all units \[m²\].
     pub footprint_m2: f64,
-    /// Capital of one unit [currency].
+    /// Capital of one unit: its share of the array's [currency].
     pub unit_capital: f64,
-    /// Capital of the array [currency].
+    /// Capital of the array, every unit's parts nested onto stock together [currency].
     pub capital: f64,
     /// The worst month of the year that set the size (1…12).
     pub worst_month: u32,
@@ -516,7 +517,14 @@ pub fn size_from_years(
     storage.sort_by(f64::total_cmp);
     runs.sort_unstable();
 
-    let cost = economics::cost_variant(loaded, index, None)?;
+    // The capital of the sized array: every unit's parts nested onto stock together.
+    let cost = economics::cost_variant_for_units(
+        loaded,
+        index,
+        None,
+        units,
+        format!("{units} units sized"),
+    )?;
     let site = &loaded.design.site;
     let alpha = month_noon_elevation_rad(site.latitude_deg, worst_month);
     let height = row_height_m(v);
@@ -556,7 +564,7 @@ pub fn size_from_years(
         unit_footprint_m2: v.footprint_m2(),
         footprint_m2: units_f * v.footprint_m2(),
         unit_capital: cost.cost.capital,
-        capital: units_f * cost.cost.capital,
+        capital: cost.cost.installation_capital,
         worst_month,
         unit_worst_month_l_day: unit_worst,
         array_worst_month_l_day: units_f * unit_worst,
@@ -569,13 +577,7 @@ pub fn size_from_years(
         storage_l: storage[k.min(storage.len() - 1)],
         longest_low_run_days: runs[k.min(runs.len() - 1)],
         rain,
-        operator_h_per_day: economics::operator_time(
-            v,
-            &loaded.design.costs,
-            units,
-            format!("{units} units sized"),
-        )
-        .installation_h_per_day,
+        operator_h_per_day: cost.cost.operator.installation_h_per_day,
     }))
 }
 

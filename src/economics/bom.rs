@@ -28,14 +28,21 @@ pub struct BomLine {
     pub amount: Amount,
     /// How it became a purchase quantity.
     pub conversion: String,
-    /// Quantity bought, in the item's unit.
+    /// Quantity bought for one unit built alone, in the item's unit (what its cut list
+    /// shows).
     pub quantity: f64,
+    /// Quantity bought for the whole installation ([`Bom::units`] units, their parts nested
+    /// onto stock together so offcuts are shared), in the item's unit.
+    pub installation_quantity: f64,
     /// The item's unit, as written in the library.
     pub unit: &'static str,
     /// Price per unit paid (with the import cost when not local) [currency].
     pub unit_price: f64,
-    /// Line cost [currency].
+    /// Line cost of one unit built alone: quantity × unit price [currency].
     pub cost: f64,
+    /// One unit's share of the installation's line cost: installation quantity × unit
+    /// price ÷ units [currency]. This is what the capital carries.
+    pub unit_share_cost: f64,
     /// Sold locally.
     pub local: bool,
     /// Service life [years].
@@ -77,10 +84,127 @@ pub struct CutEntry {
     pub part: String,
     /// Library item id.
     pub item: String,
-    /// Sheets, when nested on sheets.
+    /// Sheets of one unit built alone, when nested on sheets.
     pub sheets: Option<SheetPlan>,
-    /// Bars, when nested on bars.
+    /// Bars of one unit built alone, when nested on bars.
     pub bars: Option<BarPlan>,
+    /// The same parts of every unit of the installation nested together.
+    pub installation: InstallationNest,
+}
+
+/// Units nested together at most, in one batch ([`nest_installation_sheets`]): larger
+/// installations are nested batch by batch (full batches plus the rest), which keeps the
+/// first-fit search short. Offcuts are shared within a batch, not between batches, so the
+/// stock bought is an upper bound within a fraction of a sheet per batch of the stock a
+/// nesting of every unit at once would need. Our choice (common practice, no source).
+pub const NEST_BATCH_UNITS: u64 = 100;
+
+/// The stock one item's parts need when every unit of an installation is nested together.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct InstallationNest {
+    /// Units nested.
+    pub units: u64,
+    /// Stock pieces bought (sheets, lengths off a roll, or bars).
+    pub pieces: usize,
+    /// Parts' total: area [m²] for sheets, length [m] for bars.
+    pub parts: f64,
+    /// Stock bought: area [m²] for sheets, length [m] for bars.
+    pub stock: f64,
+    /// Offcut waste: stock − parts (m² or m).
+    pub waste: f64,
+    /// Stock one unit built alone buys, times the units (m² or m): what buying per unit
+    /// would cost, for comparison.
+    pub per_unit_stock: f64,
+}
+
+impl InstallationNest {
+    /// Waste as a fraction of the stock bought [-].
+    pub fn waste_fraction(&self) -> f64 {
+        if self.stock > 0.0 {
+            self.waste / self.stock
+        } else {
+            0.0
+        }
+    }
+}
+
+/// `parts` of `units` identical units, each labelled with its unit number when there are
+/// several (`unit 2: cover pane`).
+pub fn replicate_parts(parts: &[Part], units: u64) -> Vec<Part> {
+    if units <= 1 {
+        return parts.to_vec();
+    }
+    (1..=units)
+        .flat_map(|u| {
+            parts.iter().map(move |p| Part {
+                label: format!("unit {u}: {}", p.label),
+                a_m: p.a_m,
+                b_m: p.b_m,
+            })
+        })
+        .collect()
+}
+
+/// Batches of at most [`NEST_BATCH_UNITS`] units that make up `units`: (batch size, how
+/// many such batches).
+fn batches(units: u64) -> Vec<(u64, u64)> {
+    let units = units.max(1);
+    let full = units / NEST_BATCH_UNITS;
+    let rest = units % NEST_BATCH_UNITS;
+    let mut out = Vec::new();
+    if full > 0 {
+        out.push((NEST_BATCH_UNITS, full));
+    }
+    if rest > 0 {
+        out.push((rest, 1));
+    }
+    out
+}
+
+/// Nest the sheet `parts` of `units` identical units together onto `stocks`, batch by batch
+/// ([`NEST_BATCH_UNITS`]): (sheets bought, stock area [m²]).
+pub fn nest_installation_sheets(
+    parts: &[Part],
+    stocks: &[crate::design::Stock],
+    units: u64,
+) -> Result<(usize, f64), cutlist::TooLarge> {
+    let mut sheets = 0;
+    let mut area = 0.0;
+    for (size, count) in batches(units) {
+        let plan = cutlist::nest_sheets_least_stock(&replicate_parts(parts, size), stocks)?;
+        sheets += plan.sheets.len() * count as usize;
+        area += plan.stock_m2 * count as f64;
+    }
+    Ok((sheets, area))
+}
+
+/// Nest the bar `pieces` of `units` identical units together onto `stocks`, batch by batch:
+/// (bars bought, stock length [m]); `None` when `stocks` has no bar length.
+pub fn nest_installation_bars(
+    pieces: &[(String, f64)],
+    stocks: &[crate::design::Stock],
+    units: u64,
+) -> Option<(usize, f64)> {
+    let mut bars = 0;
+    let mut length = 0.0;
+    for (size, count) in batches(units) {
+        let all: Vec<(String, f64)> = (1..=size)
+            .flat_map(|u| {
+                pieces.iter().map(move |(l, x)| {
+                    let label = if size > 1 {
+                        format!("unit {u}: {l}")
+                    } else {
+                        l.clone()
+                    };
+                    (label, *x)
+                })
+            })
+            .collect();
+        let plan = cutlist::nest_bars(&all, stocks)?;
+        bars += plan.bars.len() * count as usize;
+        length += plan.stock_m * count as f64;
+    }
+    Some((bars, length))
 }
 
 /// A pane split with glazing bars because no stock sheet holds it.
@@ -92,9 +216,12 @@ pub struct GlazingSplit {
     pub split: cutlist::Split,
 }
 
-/// A priced bill of materials with its cut list.
+/// A priced bill of materials with its cut list, for one unit and for the installation it
+/// belongs to.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Bom {
+    /// Units in the installation whose parts are nested together (1: a unit alone).
+    pub units: u64,
     /// The lines.
     pub lines: Vec<BomLine>,
     /// The cut list.
@@ -116,9 +243,24 @@ pub struct Bom {
 }
 
 impl Bom {
-    /// Capital cost of the materials [currency].
+    /// Materials of one unit built alone [currency].
     pub fn materials_cost(&self) -> f64 {
         self.lines.iter().map(|l| l.cost).sum()
+    }
+
+    /// One unit's share of the installation's materials [currency]: what the capital
+    /// carries. Equal to [`Bom::materials_cost`] for a single unit, and below it when the
+    /// units' parts share stock.
+    pub fn unit_share_materials_cost(&self) -> f64 {
+        self.lines.iter().map(|l| l.unit_share_cost).sum()
+    }
+
+    /// Materials of the whole installation [currency].
+    pub fn installation_materials_cost(&self) -> f64 {
+        self.lines
+            .iter()
+            .map(|l| l.installation_quantity * l.unit_price)
+            .sum()
     }
 }
 
@@ -129,6 +271,15 @@ fn unit_name(u: Unit) -> &'static str {
         Unit::Kilogram => "kg",
         Unit::Litre => "L",
         Unit::Piece => "piece",
+    }
+}
+
+/// A quantity with the digits it needs (whole numbers without decimals).
+fn fmt_quantity(q: f64) -> String {
+    if (q - q.round()).abs() < 1e-9 {
+        format!("{q:.0}")
+    } else {
+        format!("{q:.3}")
     }
 }
 
@@ -152,7 +303,7 @@ fn item_path(lib: &Library, id: &str) -> String {
 /// Turn a geometric amount into a purchase quantity in the item's unit.
 fn convert(
     item: &Item,
-    need: &Need,
+    amount: Amount,
     c: &Costs,
     nested_m2: Option<f64>,
     nested_sheets: Option<usize>,
@@ -162,7 +313,7 @@ fn convert(
     let pct = c.waste_allowance * 100.0;
     let bead_m2 = c.sealant_bead_mm2 * 1e-6;
     let coats = f64::from(c.paint_coats);
-    match (need.amount, item.unit) {
+    match (amount, item.unit) {
         (Amount::AreaM2(_), Unit::SquareMetre) if nested_m2.is_some() => Ok((
             nested_m2.unwrap_or(0.0),
             "stock area bought, from the cut list".into(),
@@ -237,16 +388,23 @@ fn convert(
     }
 }
 
-/// Price every need of a takeoff. Problems (an item missing from the library, a unit that
-/// cannot hold the quantity) are returned together, each naming the item, the field and the
-/// file.
+/// Price every need of a takeoff, for one unit built alone and for an installation of
+/// `units` identical units (≥ 1; 0 counts as 1) whose sheet parts and bar pieces are nested
+/// onto stock together ([`nest_installation_sheets`], [`nest_installation_bars`]), so that
+/// offcuts are shared across units. Quantities that are not nested scale with the units
+/// before they are rounded (sealant cartridges are shared too). Problems (an item missing
+/// from the library, a unit that cannot hold the quantity) are returned together, each
+/// naming the item, the field and the file.
 pub fn price(
     takeoff: &Takeoff,
     lib: &Library,
     library_file: &Path,
     design_file: &Path,
     c: &Costs,
+    units: u64,
 ) -> Result<Bom, Vec<DesignIssue>> {
+    let units = units.max(1);
+    let n = units as f64;
     let mut problems = Vec::new();
     let mut lines = Vec::new();
     let mut cuts = Vec::new();
@@ -351,9 +509,22 @@ pub fn price(
             continue;
         };
         let mut sheet_plan = None;
+        let mut sheet_all = None;
         if !need.sheets.is_empty() && item.stock.iter().any(|s| s.width_m.is_some()) {
-            match cutlist::nest_sheets(&need.sheets, &item.stock) {
-                Ok(p) => sheet_plan = Some(p),
+            let nested =
+                cutlist::nest_sheets_least_stock(&need.sheets, &item.stock).and_then(|p| {
+                    let all = if units > 1 {
+                        nest_installation_sheets(&need.sheets, &item.stock, units)?
+                    } else {
+                        (p.sheets.len(), p.stock_m2)
+                    };
+                    Ok((p, all))
+                });
+            match nested {
+                Ok((p, all)) => {
+                    sheet_plan = Some(p);
+                    sheet_all = Some(all);
+                }
                 Err(e) => problems.push(issue(
                     library_file,
                     item_path(lib, &item.id),
@@ -369,18 +540,34 @@ pub fn price(
         } else {
             cutlist::nest_bars(&need.bars, &item.stock)
         };
+        let bar_all = match &bar_plan {
+            Some(b) if units > 1 => nest_installation_bars(&need.bars, &item.stock, units),
+            Some(b) => Some((b.bars.len(), b.stock_m)),
+            None => None,
+        };
         if let Some(b) = &bar_plan {
             joints += b.joins;
         }
         let conv = convert(
             item,
-            need,
+            need.amount,
             c,
             sheet_plan.as_ref().map(|p| p.stock_m2),
             sheet_plan.as_ref().map(|p| p.sheets.len()),
             bar_plan.as_ref().map(|p| p.stock_m),
-        );
-        let (quantity, conversion) = match conv {
+        )
+        .and_then(|one| {
+            let all = convert(
+                item,
+                need.amount.scaled(n),
+                c,
+                sheet_all.map(|a| a.1),
+                sheet_all.map(|a| a.0),
+                bar_all.map(|a| a.1),
+            )?;
+            Ok((one, all.0))
+        });
+        let ((quantity, mut conversion), installation_quantity) = match conv {
             Ok(q) => q,
             Err(why) => {
                 problems.push(issue(
@@ -419,12 +606,39 @@ pub fn price(
                     .unwrap_or_else(|| "not marked food_grade in the library".into()),
             });
         }
-        if sheet_plan.is_some() || bar_plan.is_some() {
+        if units > 1 {
+            conversion = format!(
+                "{conversion}; the installation's {units} units nested together buy {} {}",
+                fmt_quantity(installation_quantity),
+                unit_name(item.unit)
+            );
+        }
+        let nest = match (&sheet_plan, sheet_all, &bar_plan, bar_all) {
+            (Some(p), Some((pieces, stock)), _, _) => Some(InstallationNest {
+                units,
+                pieces,
+                parts: p.parts_m2 * n,
+                stock,
+                waste: stock - p.parts_m2 * n,
+                per_unit_stock: p.stock_m2 * n,
+            }),
+            (None, _, Some(b), Some((pieces, stock))) => Some(InstallationNest {
+                units,
+                pieces,
+                parts: b.pieces_m * n,
+                stock,
+                waste: stock - b.pieces_m * n,
+                per_unit_stock: b.stock_m * n,
+            }),
+            _ => None,
+        };
+        if let Some(installation) = nest {
             cuts.push(CutEntry {
                 part: need.part.clone(),
                 item: item.id.clone(),
                 sheets: sheet_plan,
                 bars: bar_plan,
+                installation,
             });
         }
         lines.push(BomLine {
@@ -437,9 +651,11 @@ pub fn price(
             amount: need.amount,
             conversion,
             quantity,
+            installation_quantity,
             unit: unit_name(item.unit),
             unit_price,
             cost: quantity * unit_price,
+            unit_share_cost: installation_quantity * unit_price / n,
             local: item.local,
             lifetime_years: item.lifetime_years,
             contact: need.contact,
@@ -450,6 +666,7 @@ pub fn price(
     }
     let shaded_m2 = splits.iter().map(|s| s.split.shaded_m2).sum();
     Ok(Bom {
+        units,
         lines,
         cuts,
         splits,

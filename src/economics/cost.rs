@@ -75,7 +75,7 @@ pub struct Replacement {
     pub lifetime_years: f64,
     /// Times replaced within the still's life.
     pub count: u32,
-    /// Cost of one replacement (materials) [currency].
+    /// Cost of one replacement (materials; the unit's share of the installation's) [currency].
     pub cost_each: f64,
     /// Present worth of all of them [currency].
     pub present_worth: f64,
@@ -86,14 +86,25 @@ pub struct Replacement {
 pub struct CostSummary {
     /// Currency of every figure.
     pub currency: String,
-    /// Materials [currency].
+    /// Units of the installation whose parts are nested onto stock together (the
+    /// operator's units, [`super::operator::OperatorTime::units`]).
+    pub units: u64,
+    /// One unit's share of the installation's materials, every unit's sheet parts and bar
+    /// pieces nested together ([`Bom::unit_share_materials_cost`]) [currency].
     pub materials: f64,
+    /// Materials of one unit built alone, its stock bought for it only [currency].
+    pub single_unit_materials: f64,
     /// Workshop labour [h].
     pub labour_h: f64,
     /// Workshop labour cost [currency].
     pub labour_cost: f64,
-    /// Capital: materials + labour [currency].
+    /// Capital of one unit: its share of the materials + labour [currency]. Cost per litre,
+    /// upkeep, salvage and replacements are worked from it.
     pub capital: f64,
+    /// Capital of one unit built alone: its own stock + labour [currency].
+    pub single_unit_capital: f64,
+    /// Capital of the whole installation: units × [`CostSummary::capital`] [currency].
+    pub installation_capital: f64,
     /// Capital per m² of footprint [currency m⁻²].
     pub capital_per_m2: f64,
     /// Replacements of short-lived parts.
@@ -191,46 +202,79 @@ pub fn cost_variant(
     cost_of(loaded, v, index, yield_)
 }
 
-/// Cost one variant (possibly a modified copy of design variant `index`).
+/// Cost variant number `index` (0-based) as one of an installation of `units` units (the
+/// units' parts nested onto stock together; the operator's round shared over them), whatever
+/// the design's demand. `basis` says where the units come from.
+pub fn cost_variant_for_units(
+    loaded: &LoadedDesign,
+    index: usize,
+    yield_: Option<&YieldEstimate>,
+    units: u64,
+    basis: String,
+) -> Result<VariantCost, DesignErrors> {
+    let Some(v) = loaded.design.variants.get(index) else {
+        return cost_variant(loaded, index, yield_);
+    };
+    cost_of_units(loaded, v, index, yield_, units, basis)
+}
+
+/// Cost one variant (possibly a modified copy of design variant `index`) as one unit of the
+/// installation the design's demand needs ([`super::operator::installation_units`]).
 pub fn cost_of(
     loaded: &LoadedDesign,
     v: &Variant,
     index: usize,
     yield_: Option<&YieldEstimate>,
 ) -> Result<VariantCost, DesignErrors> {
+    let (units, basis) =
+        super::operator::installation_units(loaded, yield_.and_then(|y| y.worst_month_l_day));
+    cost_of_units(loaded, v, index, yield_, units, basis)
+}
+
+/// Cost one variant as one unit of an installation of `units` units.
+pub fn cost_of_units(
+    loaded: &LoadedDesign,
+    v: &Variant,
+    index: usize,
+    yield_: Option<&YieldEstimate>,
+    units: u64,
+    basis: String,
+) -> Result<VariantCost, DesignErrors> {
+    let units = units.max(1);
     let c = &loaded.design.costs;
     let lib = &loaded.library;
     let t = takeoff::takeoff(v, index + 1, lib, c);
-    let bom = bom::price(&t, lib, &loaded.library_path, &loaded.source, c).map_err(DesignErrors)?;
+    let bom = bom::price(&t, lib, &loaded.library_path, &loaded.source, c, units)
+        .map_err(DesignErrors)?;
     let cx = complexity::complexity(&bom, &t.tolerances, lib, c);
     let commissioning = complexity::commissioning(v, c, yield_.and_then(|y| y.clear_day_litres));
     let steps = complexity::build_steps(v, &bom, &commissioning);
 
-    let materials = bom.materials_cost();
+    let materials = bom.unit_share_materials_cost();
+    let single_unit_materials = bom.materials_cost();
     let labour_h = cx.labour_h;
     let labour_cost = labour_h * c.labour_rate_per_h;
     let capital = materials + labour_cost;
+    let single_unit_capital = single_unit_materials + labour_cost;
     let i = c.discount_rate;
     let n = c.life_years;
     let crf = finance::capital_recovery_factor(i, n);
     let sff = finance::sinking_fund_factor(i, n);
     let mut replacements = Vec::new();
     for l in &bom.lines {
-        let (count, pw) = finance::replacements(l.cost, l.lifetime_years, n, i);
+        let (count, pw) = finance::replacements(l.unit_share_cost, l.lifetime_years, n, i);
         if count > 0 {
             replacements.push(Replacement {
                 part: l.part.clone(),
                 item: l.item.clone(),
                 lifetime_years: l.lifetime_years,
                 count,
-                cost_each: l.cost,
+                cost_each: l.unit_share_cost,
                 present_worth: pw,
             });
         }
     }
     let replacements_pw: f64 = replacements.iter().map(|r| r.present_worth).sum();
-    let (units, basis) =
-        super::operator::installation_units(loaded, yield_.and_then(|y| y.worst_month_l_day));
     let operator = super::operator::operator_time(v, c, units, basis);
     let operator_h_per_year = operator.unit_share_h_per_year;
     let operator_cost_per_year = operator_h_per_year * c.operator_rate_per_h;
@@ -298,10 +342,14 @@ pub fn cost_of(
         commissioning,
         cost: CostSummary {
             currency: lib.library.currency.clone(),
+            units,
             materials,
+            single_unit_materials,
             labour_h,
             labour_cost,
             capital,
+            single_unit_capital,
+            installation_capital: capital * units as f64,
             capital_per_m2: capital / v.footprint_m2(),
             replacements,
             replacements_present_worth: replacements_pw,

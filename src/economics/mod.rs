@@ -21,7 +21,8 @@ pub mod operator;
 pub mod takeoff;
 
 pub use cost::{
-    SubstituteRun, VariantCost, YieldEstimate, cost_of, cost_variant, substitute, substitutes,
+    SubstituteRun, VariantCost, YieldEstimate, cost_of, cost_of_units, cost_variant,
+    cost_variant_for_units, substitute, substitutes,
 };
 pub use finance::{annualised_cost, capital_recovery_factor, cost_per_litre, sinking_fund_factor};
 pub use operator::{OperatorTime, UnitTask, operator_time};

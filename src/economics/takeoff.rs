@@ -53,6 +53,18 @@ pub enum Amount {
 }
 
 impl Amount {
+    /// The same kind of amount times `k` (the amount of `k` units).
+    pub fn scaled(self, k: f64) -> Amount {
+        match self {
+            Amount::AreaM2(v) => Amount::AreaM2(v * k),
+            Amount::LengthM(v) => Amount::LengthM(v * k),
+            Amount::VolumeM3(v) => Amount::VolumeM3(v * k),
+            Amount::Count(v) => Amount::Count(v * k),
+            Amount::BeadM(v) => Amount::BeadM(v * k),
+            Amount::PaintM2(v) => Amount::PaintM2(v * k),
+        }
+    }
+
     /// The value and its unit, for reports.
     pub fn value_unit(self) -> (f64, &'static str) {
         match self {

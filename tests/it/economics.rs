@@ -341,6 +341,161 @@ fn four_basin_walls_share_one_plywood_sheet_by_stacking_in_a_shelf() {
 }
 
 #[test]
+fn installation_nesting_hand_solved_three_glazing_panes_share_one_large_sheet() {
+    // Hand-solved layout: three units of the four-stage demo still, one 0.518 × 1.000 m
+    // glazing pane each, on window glass sold as 1.2 × 1.8 m or 0.9 × 1.2 m sheets.
+    // Mixed sizes (each new sheet the smallest that holds the pane): a pane fits the
+    // 0.9 × 1.2 m sheet only standing (0.518 across, 1.0 along); a second fits neither beside
+    // it (0.518 + 0.518 = 1.036 > 0.9 m) nor above it (1.0 + 0.518 > 1.2 m), so three sheets,
+    // 3 × 1.08 = 3.24 m². On the 1.2 × 1.8 m size alone each pane lies across (1.0 of 1.2 m)
+    // in its own shelf 0.518 m high: shelves at 0, 0.518 and 1.036 m (1.554 ≤ 1.8 m), one
+    // sheet, 2.16 m². The least-stock rule keeps the one sheet.
+    let stocks = [(1.2, 1.8), (0.9, 1.2)].map(|(w, l)| Stock {
+        width_m: Some(w),
+        length_m: l,
+        thickness_mm: None,
+        roll: false,
+    });
+    let pane = [Part {
+        label: "glazing pane".into(),
+        a_m: 0.518,
+        b_m: 1.0,
+    }];
+    let three = economics::bom::replicate_parts(&pane, 3);
+    assert_eq!(three[2].label, "unit 3: glazing pane");
+    let mixed = cutlist::nest_sheets(&three, &stocks).unwrap();
+    assert_eq!(mixed.sheets.len(), 3);
+    assert!((mixed.stock_m2 - 3.24).abs() < 1e-12);
+    let best = cutlist::nest_sheets_least_stock(&three, &stocks).unwrap();
+    assert_eq!(best.sheets.len(), 1);
+    assert!((best.stock_m2 - 2.16).abs() < 1e-12);
+    let pl = &best.sheets[0].placements;
+    for (k, y) in [0.0, 0.518, 1.036].into_iter().enumerate() {
+        assert_eq!(pl[k].label, format!("unit {}: glazing pane", k + 1));
+        assert!(
+            pl[k].x_m.abs() < 1e-12 && (pl[k].y_m - y).abs() < 1e-9,
+            "{:?}",
+            pl[k]
+        );
+        assert!((pl[k].across_m - 1.0).abs() < 1e-12 && (pl[k].along_m - 0.518).abs() < 1e-12);
+    }
+    // The installation nesting gives the same: 1 sheet, 2.16 m²; a unit alone keeps its
+    // smallest sheet (1.08 m² < 2.16 m²).
+    let (sheets, area) = economics::bom::nest_installation_sheets(&pane, &stocks, 3).unwrap();
+    assert_eq!(sheets, 1);
+    assert!((area - 2.16).abs() < 1e-12);
+    let alone = cutlist::nest_sheets_least_stock(&pane, &stocks).unwrap();
+    assert!((alone.stock_m2 - 1.08).abs() < 1e-12);
+    // Beyond one batch the batches add up: 250 units = 2 × 100 + 50; 100 panes lie three to
+    // a 1.2 × 1.8 m sheet (34 sheets), 50 panes on 17 sheets: 2 × 34 + 17 = 85 sheets.
+    assert_eq!(economics::bom::NEST_BATCH_UNITS, 100);
+    let (sheets, area) = economics::bom::nest_installation_sheets(&pane, &stocks, 250).unwrap();
+    assert_eq!(sheets, 85, "{area}");
+}
+
+/// The demo design on the coast (five kinds).
+fn coast() -> LoadedDesign {
+    design::load_design(&Path::new(env!("CARGO_MANIFEST_DIR")).join("designs/demo-coast.toml"))
+        .unwrap()
+}
+
+fn cents(x: f64) -> i64 {
+    (x * 100.0).round() as i64
+}
+
+#[test]
+fn capital_of_n_units_is_below_n_times_one_unit_when_their_parts_share_stock() {
+    let d = coast();
+    let n = 10u64;
+    for i in 0..d.design.variants.len() {
+        let one = economics::cost_variant_for_units(&d, i, None, 1, "one".into()).unwrap();
+        let all = economics::cost_variant_for_units(&d, i, None, n, "ten".into()).unwrap();
+        // Nesting ten units together never buys more than ten units bought one by one; a
+        // unit alone is the same unit whatever the installation.
+        assert!(
+            all.cost.installation_capital <= n as f64 * one.cost.capital + 1e-6,
+            "{}",
+            all.variant
+        );
+        assert_eq!(cents(all.cost.single_unit_capital), cents(one.cost.capital));
+        assert!((all.cost.installation_capital - n as f64 * all.cost.capital).abs() < 1e-6);
+        // The installation's materials are the lines' quantities × prices.
+        assert!(
+            (all.bom.installation_materials_cost() - n as f64 * all.cost.materials).abs() < 1e-6
+        );
+    }
+    // The four-stage still's casing: four strips (2 × 1.000 × 0.041 m, 2 × 0.518 × 0.041 m,
+    // 0.124 m²) take a whole 1.22 × 2.44 m plywood sheet for one unit. The forty strips of ten
+    // units lie in one sheet too, by hand: each 1.0 m strip across the sheet in its own
+    // 0.041 m shelf (20 shelves, 0.82 m; the 0.22 m left beside it holds no strip), the
+    // 0.518 m strips two to a shelf (0.518 + 0.518 ≤ 1.22 m; 10 shelves, 0.41 m): 1.23 m of
+    // the 2.44 m length. So ten units buy 2.9768 m², not 29.768 m².
+    let i = d
+        .design
+        .variants
+        .iter()
+        .position(|v| v.name == "four-stage")
+        .unwrap();
+    let one = economics::cost_variant_for_units(&d, i, None, 1, "one".into()).unwrap();
+    let all = economics::cost_variant_for_units(&d, i, None, n, "ten".into()).unwrap();
+    let casing = |r: &economics::VariantCost| {
+        r.bom
+            .lines
+            .iter()
+            .find(|l| l.part == "casing")
+            .unwrap()
+            .clone()
+    };
+    assert!((casing(&one).installation_quantity - 2.9768).abs() < 1e-9);
+    assert!((casing(&all).installation_quantity - 2.9768).abs() < 1e-9);
+    // Plywood at 7.00 per m² (demo library): 9 sheets saved = 9 × 2.9768 × 7 = 187.54.
+    let saved = n as f64 * one.cost.capital - all.cost.installation_capital;
+    assert!(saved > 187.54 - 1e-6, "{saved}");
+}
+
+#[test]
+fn capital_of_n_units_equals_n_times_one_unit_to_the_cent_when_no_part_can_share() {
+    // A 1.1 × 1.5 m basin at 20°: its cover pane, 1.1/cos 20° × 1.5 = 1.1706 × 1.5 m =
+    // 1.756 m², is more than half of the only glass sheet (1.2 × 1.8 m = 2.16 m²), so no two
+    // panes share a sheet. Every other item is bought by quantity (its stock sizes removed,
+    // the sealant priced per litre, insulation by volume ÷ board thickness), so nothing else
+    // rounds up per unit either.
+    let mut d = one_variant(
+        &SINGLE_1X2_20
+            .replace("width_m = 1.0", "width_m = 1.1")
+            .replace("length_m = 2.0", "length_m = 1.5"),
+    );
+    for it in &mut d.library.items {
+        if it.id == "silicone-sealant" {
+            it.unit = design::Unit::Litre;
+            it.unit_price = 7.0 / 0.3;
+        }
+        if it.id != "window-glass-4mm" {
+            // Boards keep their thickness (insulation is bought by volume, never nested).
+            it.stock.retain(|s| s.thickness_mm.is_some());
+        }
+    }
+    let one = economics::cost_variant_for_units(&d, 0, None, 1, "one".into()).unwrap();
+    let cover = one.bom.cuts.iter().find(|c| c.part == "cover").unwrap();
+    let sheets = cover.sheets.as_ref().unwrap();
+    assert_eq!(sheets.sheets.len(), 1);
+    assert!(
+        sheets.parts_m2 > 0.5 * sheets.stock_m2,
+        "{}",
+        sheets.parts_m2
+    );
+    for n in [2u64, 7, 150] {
+        let all = economics::cost_variant_for_units(&d, 0, None, n, "n".into()).unwrap();
+        assert_eq!(
+            cents(all.cost.installation_capital),
+            cents(n as f64 * one.cost.capital),
+            "{n} units"
+        );
+        assert_eq!(all.bom.cuts[0].installation.pieces, n as usize);
+    }
+}
+
+#[test]
 fn film_cover_substitute_is_cheaper_shorter_lived_and_changes_the_optics() {
     let d = one_variant(SINGLE_1X2_20);
     let (base, runs) = economics::substitutes(&d, 0, &|_| None).unwrap();

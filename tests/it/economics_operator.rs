@@ -146,10 +146,18 @@ fn the_cost_per_litre_falls_with_the_installation_by_the_shared_round() {
     assert_eq!(a.cost.operator.units, 1);
     // ⌈1000 ÷ 5⌉ = 200 units.
     assert_eq!(b.cost.operator.units, 200);
-    // Only the round's share changes: (20 − 20/200) min/day × 365 ÷ 60 h × 1.0/h (the
-    // default operator rate) = 121.058 per year, by hand.
-    let saved = a.cost.annualised - b.cost.annualised;
+    // The operator's pay falls by the round's share: (20 − 20/200) min/day × 365 ÷ 60 h ×
+    // 1.0/h (the default operator rate) = 121.058 per year, by hand.
+    let saved = a.cost.operator_cost_per_year - b.cost.operator_cost_per_year;
     assert!((saved - 121.058).abs() < 1e-3, "{saved}");
+    // The capital falls too (200 units' parts nested together share offcuts); the
+    // annualised cost is still P·CRF + running − S·SFF (REFERENCES.md §9) of its own figures.
+    assert!(b.cost.capital <= a.cost.capital + 1e-9);
+    let c = &b.cost;
+    let annualised =
+        (c.capital + c.replacements_present_worth) * c.crf + c.running_per_year - c.salvage * c.sff;
+    assert!((c.annualised - annualised).abs() < 1e-9);
+    assert!(a.cost.annualised - b.cost.annualised >= saved - 1e-9);
     assert!(b.cost.cost_per_litre.unwrap() < a.cost.cost_per_litre.unwrap());
     // Upkeep holds spares only; the running cost adds the operator's pay.
     assert!(
