@@ -541,7 +541,7 @@ pub fn price(
             cutlist::nest_bars(&need.bars, &item.stock)
         };
         let bar_all = match &bar_plan {
-            Some(b) if units > 1 => nest_installation_bars(&need.bars, &item.stock, units),
+            Some(_) if units > 1 => nest_installation_bars(&need.bars, &item.stock, units),
             Some(b) => Some((b.bars.len(), b.stock_m)),
             None => None,
         };
