@@ -90,7 +90,7 @@ fn twins(design: &str) -> (tempfile::TempDir, PathBuf, PathBuf) {
 
 /// The last key on a JSON path that names a money figure (`scales` by its index).
 fn is_money(path: &[String]) -> bool {
-    const MONEY: [&str; 23] = [
+    const MONEY: [&str; 27] = [
         "capital",
         "unit_capital",
         "cost",
@@ -114,6 +114,10 @@ fn is_money(path: &[String]) -> bool {
         "cost_per_l_p10",
         "cost_per_l_p90",
         "unit_operator_cost_per_year",
+        "unit_share_cost",
+        "single_unit_materials",
+        "single_unit_capital",
+        "installation_capital",
     ];
     let Some(last) = path.iter().rev().find(|k| !k.starts_with('[')) else {
         return false;
