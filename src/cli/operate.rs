@@ -84,9 +84,11 @@ fn depths(spec: &str, step: f64) -> Result<Vec<f64>, String> {
             .map_err(|_| format!("`{s}` is not a number of millimetres"))
     };
     let (from, to) = (parse(a)?, parse(b)?);
-    if !(from.is_finite() && to.is_finite() && from > 0.0 && to >= from && to <= 300.0) {
+    let least = stillbench::design::MIN_BRINE_DEPTH_MM;
+    if !(from.is_finite() && to.is_finite() && from >= least && to >= from && to <= 300.0) {
         return Err(format!(
-            "{from}..{to} is out of range; allowed 0 < FROM <= TO <= 300 mm"
+            "{from}..{to} is out of range; allowed {least} <= FROM <= TO <= 300 mm (the design \
+             file's range of brine_depth_mm)"
         ));
     }
     if !(step.is_finite() && step > 0.0) {

@@ -7,10 +7,8 @@
 use std::path::PathBuf;
 
 use stillbench::compare::size::{
-    self, DEFAULT_CONFIDENCE, DEFAULT_YEARS, DRINKING_L_PER_PERSON_DAY, SizeMethod, SizeOptions,
-    SizeReport,
+    self, DEFAULT_CONFIDENCE, DEFAULT_YEARS, SizeMethod, SizeOptions, SizeReport,
 };
-use stillbench::design::{DesignErrors, DesignIssue};
 
 use super::demand::DemandArgs;
 use super::export::{ExportArgs, Plan};
@@ -74,64 +72,14 @@ pub struct SizeArgs {
     pub export: ExportArgs,
 }
 
-fn bad_option(file: &std::path::Path, option: &str, message: String) -> anyhow::Error {
-    stillbench::Error::Design(DesignErrors(vec![DesignIssue {
-        file: file.to_path_buf(),
-        line_col: None,
-        path: option.into(),
-        message,
-    }]))
-    .into()
-}
-
-/// The demand [L/day] and a sentence saying where it came from.
+/// The demand [L/day] and a sentence saying where it came from: the report's resolution,
+/// so that `size` and `report` take the same options within the design file's limits.
 fn resolve_demand(
     args: &SizeArgs,
     loaded: &stillbench::design::LoadedDesign,
 ) -> anyhow::Result<(f64, String)> {
-    let file = &loaded.source;
-    let need = &args.need;
-    if let Some(d) = need.demand {
-        return Ok((d, format!("{d} L/day (--demand)")));
-    }
-    if let Some(p) = need.people {
-        if p == 0 {
-            return Err(bad_option(
-                file,
-                "--people",
-                "at least one person is needed".into(),
-            ));
-        }
-        let per = need.litres_per_person.unwrap_or(DRINKING_L_PER_PERSON_DAY);
-        if !(per.is_finite() && per > 0.0) {
-            return Err(bad_option(
-                file,
-                "--litres-per-person",
-                format!("must be a positive number of litres, got {per}"),
-            ));
-        }
-        let total = f64::from(p) * per;
-        return Ok((
-            total,
-            format!("{p} people × {per} L/person/day = {total} L/day"),
-        ));
-    }
-    match &loaded.design.project.demand {
-        Some(d) => {
-            let total = d.total_litres_per_day();
-            Ok((
-                total,
-                format!("{total} L/day (the design's [project.demand])"),
-            ))
-        }
-        None => Err(bad_option(
-            file,
-            "--demand",
-            "no demand given: pass --demand L_PER_DAY or --people N, or add \
-             [project.demand] to the design"
-                .into(),
-        )),
-    }
+    let (total, _, _, from) = stillbench::report::resolve_demand(loaded, args.need.choice())?;
+    Ok((total, format!("{total} L/day ({from})")))
 }
 
 /// Run `size`.

@@ -51,11 +51,12 @@ pub use risks::{
 };
 pub use schema::{
     BasinKind, Climate, Columns, DAYS_IN_MONTH, DEFAULT_LITRES_PER_PERSON_DAY, DEFAULT_RH_PERCENT,
-    DEFAULT_SOILING_TRANSMITTANCE, DRINKING_AND_COOKING_L_PER_PERSON_DAY,
-    DRINKING_L_PER_PERSON_DAY, Demand, Design, DoubleSlope, GapFill, HorizonPoint, Humidity,
-    InternalCorrelation, KIND_NAMES, Layer, LossSwitches, MonthlyClimate, MultiEffect, Period,
-    Project, STEPPED_MIN_CLEARANCE_MM, SingleSlope, Sink, Site, Stepped, Variant, VariantKind,
-    WeatherFile, WeatherFormat, Wick,
+    DEFAULT_SOILING_TRANSMITTANCE, DEMAND_MAX_L_PER_DAY, DEMAND_MAX_L_PER_PERSON_DAY,
+    DEMAND_MAX_PEOPLE, DRINKING_AND_COOKING_L_PER_PERSON_DAY, DRINKING_L_PER_PERSON_DAY, Demand,
+    Design, DoubleSlope, GapFill, HorizonPoint, Humidity, InternalCorrelation, KIND_NAMES, Layer,
+    LossSwitches, MIN_BRINE_DEPTH_MM, MonthlyClimate, MultiEffect, Period, Project,
+    STEPPED_MIN_CLEARANCE_MM, SingleSlope, Sink, Site, Stepped, Variant, VariantKind, WeatherFile,
+    WeatherFormat, Wick, demand_problems,
 };
 pub use summary::write_summary;
 pub use validate::basin_of;

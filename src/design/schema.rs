@@ -105,6 +105,62 @@ pub struct Demand {
     pub litres_per_day: Option<f64>,
 }
 
+/// Least brine depth of a basin or a tray [mm]. Shallower, the brine no longer lies on a liner
+/// as one layer (it beads and dries in patches) and a model step of minutes would empty it
+/// (common practice, no source).
+pub const MIN_BRINE_DEPTH_MM: f64 = 2.0;
+
+/// Most people a design (or `--people`) may serve.
+pub const DEMAND_MAX_PEOPLE: u32 = 1_000_000;
+/// Most litres per person and day (`litres_per_person_day`, `--litres-per-person`), above
+/// every household use a still could serve (common practice, no source).
+pub const DEMAND_MAX_L_PER_PERSON_DAY: f64 = 100.0;
+/// Largest daily demand (`litres_per_day`, `--demand`) [L/day]: 10,000 m³/day, far beyond
+/// any solar-still installation (common practice, no source).
+pub const DEMAND_MAX_L_PER_DAY: f64 = 1e7;
+
+/// Why a demand is outside the limits the design file and the command-line options share:
+/// `(which, message)` with `which` one of `people`, `litres_per_person_day`,
+/// `litres_per_day` (the caller names the field or the option).
+pub fn demand_problems(
+    people: Option<u32>,
+    litres_per_person_day: Option<f64>,
+    litres_per_day: Option<f64>,
+) -> Vec<(&'static str, String)> {
+    let mut out = Vec::new();
+    if let Some(n) = people
+        && !(1..=DEMAND_MAX_PEOPLE).contains(&n)
+    {
+        out.push((
+            "people",
+            format!("{n} is out of range; allowed [1, {DEMAND_MAX_PEOPLE}] people"),
+        ));
+    }
+    let mut positive = |which, x: Option<f64>, max: f64, unit: &str| {
+        if let Some(x) = x
+            && !(x.is_finite() && x > 0.0 && x <= max)
+        {
+            out.push((
+                which,
+                format!("{x} is out of range; allowed (0, {max}] {unit}"),
+            ));
+        }
+    };
+    positive(
+        "litres_per_person_day",
+        litres_per_person_day,
+        DEMAND_MAX_L_PER_PERSON_DAY,
+        "L/person/day",
+    );
+    positive(
+        "litres_per_day",
+        litres_per_day,
+        DEMAND_MAX_L_PER_DAY,
+        "L/day",
+    );
+    out
+}
+
 impl Demand {
     /// The daily demand [L/day].
     pub fn total_litres_per_day(&self) -> f64 {

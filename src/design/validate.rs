@@ -68,9 +68,23 @@ pub(super) fn range(r: &mut Reader<'_>, path: &str, v: f64, lo: B, hi: B, unit: 
     }
     r.error(
         path,
-        format!("{v} is out of range; allowed {}", interval(lo, hi, unit)),
+        format!(
+            "{} is out of range; allowed {}",
+            shown(v),
+            interval(lo, hi, unit)
+        ),
     );
     false
+}
+
+/// A number as the user would write it: plain, or in exponent form when it is very small or
+/// very large (`1e-320`, not three hundred zeros).
+pub(super) fn shown(v: f64) -> String {
+    if v != 0.0 && !(1e-4..1e9).contains(&v.abs()) {
+        format!("{v:e}")
+    } else {
+        format!("{v}")
+    }
 }
 
 fn opt_range(r: &mut Reader<'_>, path: &str, v: Option<f64>, lo: B, hi: B, unit: &str) {
@@ -240,36 +254,16 @@ pub(crate) fn project(
             ),
             _ => {}
         }
-        if let Some(n) = d.people
-            && !(1..=1_000_000).contains(&n)
-        {
-            r.error(
-                "project.demand.people",
-                format!("{n} is out of range; allowed [1, 1000000] people"),
-            );
-        }
         if d.people.is_none() && d.litres_per_person_day.is_some() {
             r.error(
                 "project.demand.litres_per_person_day",
                 "only meaningful together with `people`".to_string(),
             );
         }
-        opt_range(
-            r,
-            "project.demand.litres_per_person_day",
-            d.litres_per_person_day,
-            B::Ex(0.0),
-            B::In(100.0),
-            "L/person/day",
-        );
-        opt_range(
-            r,
-            "project.demand.litres_per_day",
-            d.litres_per_day,
-            B::Ex(0.0),
-            B::In(1e7),
-            "L/day",
-        );
+        for (which, message) in demand_problems(d.people, d.litres_per_person_day, d.litres_per_day)
+        {
+            r.error(&format!("project.demand.{which}"), message);
+        }
     }
 }
 
@@ -831,7 +825,7 @@ pub(crate) fn variants(r: &mut Reader<'_>, vs: &[Variant], lib: Option<&Library>
                     r,
                     &format!("{p}.brine_depth_mm"),
                     k.brine_depth_mm,
-                    B::Ex(0.0),
+                    B::In(MIN_BRINE_DEPTH_MM),
                     B::In(300.0),
                     "mm",
                 );
@@ -865,7 +859,7 @@ pub(crate) fn variants(r: &mut Reader<'_>, vs: &[Variant], lib: Option<&Library>
                     r,
                     &format!("{p}.brine_depth_mm"),
                     k.brine_depth_mm,
-                    B::Ex(0.0),
+                    B::In(MIN_BRINE_DEPTH_MM),
                     B::In(300.0),
                     "mm",
                 );
@@ -931,7 +925,7 @@ pub(crate) fn variants(r: &mut Reader<'_>, vs: &[Variant], lib: Option<&Library>
                     r,
                     &format!("{p}.tray_depth_mm"),
                     k.tray_depth_mm,
-                    B::Ex(0.0),
+                    B::In(MIN_BRINE_DEPTH_MM),
                     B::In(100.0),
                     "mm",
                 );

@@ -108,40 +108,38 @@ fn option_error(loaded: &LoadedDesign, option: &str, message: String) -> Error {
     }]))
 }
 
-/// Demand [L day⁻¹], people and litres per person, and a sentence saying where it came from.
-fn resolve_demand(
+/// Demand [L day⁻¹], people and litres per person, and a sentence saying where it came from,
+/// for `report` and `size` alike. The options obey the design file's own limits
+/// ([`crate::design::demand_problems`]).
+///
+/// Errors: an option outside those limits, or no demand at all (bad input, naming the option).
+pub fn resolve_demand(
     loaded: &LoadedDesign,
     choice: DemandChoice,
 ) -> Result<(f64, Option<u32>, Option<f64>, String), Error> {
+    let option = |which: &str| match which {
+        "people" => "--people",
+        "litres_per_person_day" => "--litres-per-person",
+        _ => "--demand",
+    };
+    let refuse = |problems: Vec<(&'static str, String)>| match problems.into_iter().next() {
+        Some((which, message)) => Err(option_error(loaded, option(which), message)),
+        None => Ok(()),
+    };
     match choice {
         DemandChoice::Total(d) => {
-            if !(d.is_finite() && d > 0.0) {
-                return Err(option_error(
-                    loaded,
-                    "--demand",
-                    format!("must be a positive number of litres per day, got {d}"),
-                ));
-            }
+            refuse(crate::design::demand_problems(None, None, Some(d)))?;
             Ok((d, None, None, format!("{d} L/day given with --demand")))
         }
         DemandChoice::People {
             people,
             l_per_person_day,
         } => {
-            if people == 0 {
-                return Err(option_error(
-                    loaded,
-                    "--people",
-                    "at least one person is needed".into(),
-                ));
-            }
-            if !(l_per_person_day.is_finite() && l_per_person_day > 0.0) {
-                return Err(option_error(
-                    loaded,
-                    "--litres-per-person",
-                    format!("must be a positive number of litres, got {l_per_person_day}"),
-                ));
-            }
+            refuse(crate::design::demand_problems(
+                Some(people),
+                Some(l_per_person_day),
+                None,
+            ))?;
             let total = f64::from(people) * l_per_person_day;
             Ok((
                 total,

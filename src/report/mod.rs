@@ -27,7 +27,8 @@ use std::io::Write;
 use std::path::{Path, PathBuf};
 
 pub use build::{
-    DemandChoice, ReportOptions, build_context, build_context_with, report_date, sha256_hex,
+    DemandChoice, ReportOptions, build_context, build_context_with, report_date, resolve_demand,
+    sha256_hex,
 };
 pub use charts::Chart;
 pub use context::ReportContext;

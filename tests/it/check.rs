@@ -185,3 +185,90 @@ fn check_rejects_monthly_sunlight_above_what_reaches_the_top_of_the_atmosphere()
         );
     }
 }
+
+/// The southern demo with `edit` applied, written beside nothing else (absolute library path).
+fn edited_demo(dir: &Path, name: &str, edit: impl FnOnce(&mut DocumentMut)) -> PathBuf {
+    let src = root().join("designs/demo-highland-south.toml");
+    let mut doc: DocumentMut = std::fs::read_to_string(&src).unwrap().parse().unwrap();
+    doc["materials"] = value(
+        root()
+            .join("designs/materials/demo-market.toml")
+            .to_str()
+            .unwrap(),
+    );
+    edit(&mut doc);
+    let p = dir.join(format!("{name}.toml"));
+    std::fs::write(&p, doc.to_string()).unwrap();
+    p
+}
+
+#[test]
+fn size_and_report_options_obey_the_design_files_own_demand_limits() {
+    let dir = tempfile::tempdir().unwrap();
+    let demo = root().join("designs/demo-highland-south.toml");
+    // (option, value, the design-file field with the same limit)
+    let cases = [
+        ("--demand", "1e9", "litres_per_day", "1e9"),
+        ("--demand", "0", "litres_per_day", "0"),
+        ("--people", "2000000", "people", "2000000"),
+    ];
+    for (option, x, field, fx) in cases {
+        for cmd in ["size", "report"] {
+            let out = stillbench()
+                .args([cmd, demo.to_str().unwrap(), option, x])
+                .args(["--out", dir.path().join("r").to_str().unwrap()])
+                .output()
+                .unwrap();
+            let err = String::from_utf8_lossy(&out.stderr);
+            assert_eq!(out.status.code(), Some(2), "{cmd} {option} {x}: {err}");
+            assert!(
+                err.contains(&format!("{option}:")) && err.contains("allowed"),
+                "{err}"
+            );
+        }
+        let p = edited_demo(dir.path(), field, |d| {
+            let mut t = toml_edit::Table::new();
+            t[field] = toml_edit::Item::Value(fx.parse::<toml_edit::Value>().unwrap());
+            d["project"]["demand"] = toml_edit::Item::Table(t);
+        });
+        let (code, err) = run("check", &p);
+        assert_eq!(code, Some(2), "{field} = {fx}: {err}");
+        assert!(err.contains(&format!("project.demand.{field}:")), "{err}");
+    }
+    let out = stillbench()
+        .args(["size", demo.to_str().unwrap(), "--people", "20"])
+        .args(["--litres-per-person", "500"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--litres-per-person:"));
+}
+
+#[test]
+fn a_vanishing_brine_depth_is_refused_with_its_physical_floor() {
+    // The fuzz finding: 1e-320 mm was inside "(0, 300]" and the run then exited 3.
+    let dir = tempfile::tempdir().unwrap();
+    let p = edited_demo(dir.path(), "thin", |d| {
+        let v = d["variant"].as_array_of_tables_mut().unwrap();
+        for t in v.iter_mut() {
+            if t.contains_key("brine_depth_mm") {
+                t["brine_depth_mm"] = value(1e-320);
+            }
+            if t.get("kind").and_then(|k| k.as_str()) == Some("stepped") {
+                t["tray_depth_mm"] = value(1e-320);
+            }
+        }
+    });
+    let (code, err) = run("check", &p);
+    assert_eq!(code, Some(2), "{err}");
+    assert!(
+        err.contains(".brine_depth_mm:") && err.contains("allowed [2, 300] mm"),
+        "{err}"
+    );
+    assert!(
+        err.contains(".tray_depth_mm:") && err.contains("allowed [2, 100] mm"),
+        "{err}"
+    );
+    let (code, err) = run("simulate", &p);
+    assert_eq!(code, Some(2), "{err}");
+}
